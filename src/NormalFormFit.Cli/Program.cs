@@ -2,5 +2,5 @@ namespace NormalFormFit.Cli;
 
 internal static class Program
 {
-    private static int Main(string[] args) => args.Length >= 0 ? 0 : 1;
+    private static int Main(string[] args) => NffitApp.Run(args, Console.Out, Console.Error);
 }

@@ -1,0 +1,93 @@
+using System.CommandLine;
+using NormalFormFit.Analysis;
+using NormalFormFit.Ingest;
+using NormalFormFit.Reporting;
+
+namespace NormalFormFit.Cli;
+
+internal static class AnalyzeCommand
+{
+    public static Command Create(TextWriter stdout, TextWriter stderr)
+    {
+        var manifest = new Argument<string>("manifest") { Description = "CSV with header 'file,param' naming one run file per parameter value" };
+        var json = new Option<string?>("--json") { Description = "also write the JSON report to FILE ('-' for standard output, which then carries only the JSON)" };
+        var timeCol = new Option<string>("--time-column") { Description = "time column: header name or 1-based position", DefaultValueFactory = _ => "t" };
+        var phaseCol = new Option<string>("--phase-column") { Description = "phase column: header name or 1-based position", DefaultValueFactory = _ => "theta" };
+        var unit = new Option<string>("--phase-unit") { Description = "unit of the phase column", DefaultValueFactory = _ => "radians" };
+        unit.AcceptOnlyFromAmong("radians", "degrees", "turns");
+        var decimalComma = new Option<bool>("--decimal-comma") { Description = "numbers in run files use a decimal comma (fields then separated by ';', tab or blanks)" };
+        var threads = new Option<int>("--threads") { Description = "runs analysed at once (default: one per core); results do not depend on it", DefaultValueFactory = _ => Environment.ProcessorCount };
+        var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
+        var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
+        var cmd = new Command("analyze", "Find the onset from a set of runs: bottleneck normal form, periods, scaling")
+        {
+            manifest, json, timeCol, phaseCol, unit, decimalComma, threads, quiet, verbose,
+        };
+        cmd.SetAction(pr =>
+        {
+            var options = new AnalyzeOptions
+            {
+                Read = new RunReadOptions
+                {
+                    TimeColumn = pr.GetValue(timeCol)!,
+                    PhaseColumn = pr.GetValue(phaseCol)!,
+                    PhaseUnit = pr.GetValue(unit) switch
+                    {
+                        "degrees" => PhaseUnit.Degrees,
+                        "turns" => PhaseUnit.Turns,
+                        _ => PhaseUnit.Radians,
+                    },
+                    DecimalComma = pr.GetValue(decimalComma),
+                },
+                Parallelism = Math.Max(1, pr.GetValue(threads)),
+            };
+            return Execute(pr.GetValue(manifest)!, pr.GetValue(json), pr.GetValue(quiet), options, stdout, stderr);
+        });
+        return cmd;
+    }
+
+    internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr)
+    {
+        var result = ManifestAnalyzer.Analyze(manifestPath, options);
+        if (result.Value is null)
+        {
+            var errors = result.Diagnostics.Where(d => d.Severity == Severity.Error).ToList();
+            foreach (var d in result.Diagnostics)
+            {
+                stderr.WriteLine($"nffit: {d}");
+            }
+
+            return errors.Any(e => e.Code == InsufficientData.TooFewRuns) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+        }
+
+        var report = result.Value;
+        if (jsonPath == "-")
+        {
+            using var stdoutStream = new MemoryStream();
+            JsonReport.Write(report, stdoutStream, NffitApp.Version);
+            stdout.WriteLine(System.Text.Encoding.UTF8.GetString(stdoutStream.ToArray()));
+        }
+        else
+        {
+            if (jsonPath is not null)
+            {
+                try
+                {
+                    AtomicFile.Write(jsonPath, s => JsonReport.Write(report, s, NffitApp.Version));
+                }
+                catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+                {
+                    stderr.WriteLine($"nffit: {jsonPath}: error: cannot write the JSON report ({e.Message}); check that the folder exists and is writable");
+                    return ExitCodes.BadInput;
+                }
+            }
+
+            if (!quiet)
+            {
+                stdout.Write(TextReport.Format(report));
+            }
+        }
+
+        return ExitCodes.Ok;
+    }
+}

@@ -1,0 +1,50 @@
+using System.CommandLine;
+using System.Reflection;
+
+namespace NormalFormFit.Cli;
+
+/// <summary>The command line: wires stages together and turns diagnostics into messages and exit codes.</summary>
+internal static class NffitApp
+{
+    public static string Version =>
+        typeof(NffitApp).Assembly.GetCustomAttribute<AssemblyInformationalVersionAttribute>()?.InformationalVersion.Split('+')[0] ?? "0";
+
+    /// <summary>Runs the tool with injected writers; returns the exit code. Never throws.</summary>
+    public static int Run(string[] args, TextWriter stdout, TextWriter stderr)
+    {
+        var verbose = args.Contains("--verbose");
+        try
+        {
+            var root = new RootCommand("nffit — saddle-node-on-circle onset analysis from phase recordings")
+            {
+                AnalyzeCommand.Create(stdout, stderr),
+                SimulateCommand.Create(stdout, stderr),
+            };
+            var parsed = root.Parse(args);
+            if (parsed.Errors.Count > 0)
+            {
+                foreach (var e in parsed.Errors)
+                {
+                    stderr.WriteLine($"nffit: usage: {e.Message}");
+                }
+
+                stderr.WriteLine("nffit: run 'nffit --help' or 'nffit COMMAND --help' for the options");
+                return ExitCodes.BadInput;
+            }
+
+            return parsed.Invoke(new InvocationConfiguration { Output = stdout, Error = stderr, EnableDefaultExceptionHandler = false });
+        }
+#pragma warning disable CA1031 // The one place that turns any bug into exit code 70 and one line.
+        catch (Exception e)
+#pragma warning restore CA1031
+        {
+            stderr.WriteLine($"nffit: internal error ({e.GetType().Name}: {e.Message}); this is a bug, please report it with the input that caused it");
+            if (verbose)
+            {
+                stderr.WriteLine(e.ToString());
+            }
+
+            return ExitCodes.Internal;
+        }
+    }
+}

@@ -1,0 +1,89 @@
+using NormalFormFit.Ingest;
+
+namespace NormalFormFit.Analysis;
+
+/// <summary>Options of a whole analysis.</summary>
+public sealed record AnalyzeOptions
+{
+    /// <summary>How run files are read.</summary>
+    public RunReadOptions Read { get; init; } = RunReadOptions.Default;
+
+    /// <summary>Per-run analysis options.</summary>
+    public RunOptions Run { get; init; } = RunOptions.Default;
+
+    /// <summary>Runs analysed at once (1 = sequential). Results do not depend on it.</summary>
+    public int Parallelism { get; init; } = Environment.ProcessorCount;
+
+    /// <summary>Defaults.</summary>
+    public static AnalyzeOptions Default { get; } = new();
+}
+
+/// <summary>Diagnostic codes that mean "valid data, but it cannot answer the question" (exit code 3).</summary>
+public static class InsufficientData
+{
+    /// <summary>Fewer than three usable turning runs.</summary>
+    public const string TooFewRuns = "insufficient-runs";
+}
+
+/// <summary>Manifest → runs → report: the main job, wired from pure stages.</summary>
+public static class ManifestAnalyzer
+{
+    /// <summary>
+    /// Reads the manifest and every run, analyses the runs (in parallel, results in manifest order) and combines
+    /// them. Errors in any input stop the analysis and come back as diagnostics; nothing is written.
+    /// </summary>
+    public static Loaded<AnalysisReport> Analyze(string manifestPath, AnalyzeOptions? options = null, IProgress<int>? progress = null)
+    {
+        options ??= AnalyzeOptions.Default;
+        var manifest = Manifest.Read(manifestPath);
+        if (manifest.Value is null)
+        {
+            return new Loaded<AnalysisReport>(null, manifest.Diagnostics);
+        }
+
+        var entries = manifest.Value.Entries;
+        var results = new RunResult?[entries.Count];
+        var readDiags = new IReadOnlyList<Diagnostic>[entries.Count];
+        var done = 0;
+        Parallel.For(0, entries.Count, new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, options.Parallelism) }, i =>
+        {
+            var e = entries[i];
+            var display = Path.Combine(Path.GetDirectoryName(manifestPath) ?? string.Empty, e.File);
+            var rec = RunReader.Read(e.FullPath, options.Read, display);
+            readDiags[i] = rec.Diagnostics;
+            if (rec.Value is not null)
+            {
+                var run = RunAnalyzer.Analyze(Trajectory.FromRecording(rec.Value), e.Param, e.File, e.Label, options.Run);
+                results[i] = run with { Diagnostics = [.. rec.Diagnostics.Select(d => d with { File = e.File }), .. run.Diagnostics] };
+            }
+
+            progress?.Report(Interlocked.Increment(ref done));
+        });
+
+        var errors = readDiags.SelectMany(d => d).Where(d => d.Severity == Severity.Error).ToList();
+        if (errors.Count > 0)
+        {
+            var firstBad = Array.FindIndex(readDiags, d => d.Any(x => x.Severity == Severity.Error));
+            var line = entries[firstBad].Line;
+            var context = new Diagnostic(Severity.Info, "named-by-manifest",
+                $"run file named on line {line} of the manifest", manifestPath, line);
+            return new Loaded<AnalysisReport>(null, [.. errors, context]);
+        }
+
+        var runs = results.Select(r => r!).ToList();
+        var usable = OnsetAnalysis.UsableRuns(runs);
+        if (usable < OnsetAnalysis.MinimumRuns)
+        {
+            var notTurning = runs.Count(r => !r.IsTurning);
+            return new Loaded<AnalysisReport>(null,
+            [
+                new Diagnostic(Severity.Error, InsufficientData.TooFewRuns,
+                    $"only {usable} of {runs.Count} runs turn and can be analysed ({notTurning} do not turn); an onset needs at least {OnsetAnalysis.MinimumRuns}: add runs above onset",
+                    manifestPath),
+            ]);
+        }
+
+        var report = OnsetAnalysis.Combine(runs) with { ParamUnits = entries.Select(e => e.Units).FirstOrDefault(u => u is not null) };
+        return new Loaded<AnalysisReport>(report, manifest.Diagnostics);
+    }
+}

@@ -1,0 +1,78 @@
+using NormalFormFit.Bottleneck;
+using NormalFormFit.Field;
+
+namespace NormalFormFit.Analysis;
+
+/// <summary>Per-run flags (stable names; part of the JSON contract).</summary>
+public static class RunFlags
+{
+    /// <summary>Fewer than three whole revolutions were timed.</summary>
+    public const string FewRevolutions = "few-revolutions";
+
+    /// <summary>The run does not turn (less than one revolution).</summary>
+    public const string NotTurning = "not-turning";
+
+    /// <summary>The measured period differs from π/√(ab) by more than 25%: the run is far from onset.</summary>
+    public const string FarFromOnset = "far-from-onset";
+
+    /// <summary>The period from ∮dθ/θ̇ disagrees with the measured period beyond their errors.</summary>
+    public const string FieldPeriodMismatch = "field-period-mismatch";
+
+    /// <summary>No parabola opening upward fits the slowest part of the field.</summary>
+    public const string NoBottleneck = "no-bottleneck";
+
+    /// <summary>The phase jumps by nearly π or more between samples: unwrapping is unsafe.</summary>
+    public const string UnsafeUnwrap = "unsafe-unwrap";
+
+    /// <summary>Too few samples during a passage through the bottleneck.</summary>
+    public const string CoarseSampling = "coarse-sampling";
+
+    /// <summary>The window-halving check shows a quartic bias of a comparable to its error.</summary>
+    public const string WindowBias = "window-bias";
+}
+
+/// <summary>Smoothing summary of a run.</summary>
+/// <param name="Lambda">Smoothing parameter of the first (longest) segment, in the run's time units.</param>
+/// <param name="NoiseSd">Residual standard deviation of the phase about the spline (rad): the measurement noise.</param>
+/// <param name="EffectiveDegreesOfFreedom">Total trace of the influence matrices.</param>
+public sealed record SmoothingSummary(double Lambda, double NoiseSd, double EffectiveDegreesOfFreedom);
+
+/// <summary>Periods of a run: measured, and predicted from the bottleneck and from the field.</summary>
+/// <param name="Measured">Mean measured period with standard error.</param>
+/// <param name="FromBottleneck">π/√(ab).</param>
+/// <param name="FromField">∮dθ/θ̇.</param>
+/// <param name="Revolutions">Whole revolutions timed.</param>
+public sealed record PeriodSummary(Estimate Measured, Estimate FromBottleneck, Estimate FromField, int Revolutions);
+
+/// <summary>Everything learned from one run.</summary>
+/// <param name="File">Run file as named in the manifest.</param>
+/// <param name="Param">Control parameter μ.</param>
+/// <param name="Label">Optional label.</param>
+/// <param name="Samples">Samples read.</param>
+/// <param name="Duration">Time covered.</param>
+/// <param name="Turns">Phase advance in turns.</param>
+/// <param name="Direction">+1 or −1: the sense in which the phase advanced in the file.</param>
+/// <param name="Smoothing">Smoothing summary (null if the run could not be smoothed).</param>
+/// <param name="Field">Reconstructed θ̇(θ) (null for a run that does not turn).</param>
+/// <param name="Bottleneck">Normal-form fit at the bottleneck (null when none).</param>
+/// <param name="Period">Periods (null for a run that does not turn).</param>
+/// <param name="Flags">Stable flag names, see <see cref="RunFlags"/>.</param>
+/// <param name="Diagnostics">Messages about this run.</param>
+public sealed record RunResult(
+    string File,
+    double Param,
+    string? Label,
+    int Samples,
+    double Duration,
+    double Turns,
+    int Direction,
+    SmoothingSummary? Smoothing,
+    PhaseField? Field,
+    BottleneckFit? Bottleneck,
+    PeriodSummary? Period,
+    IReadOnlyList<string> Flags,
+    IReadOnlyList<Diagnostic> Diagnostics)
+{
+    /// <summary>True when the run turned at least once.</summary>
+    public bool IsTurning => !Flags.Contains(RunFlags.NotTurning);
+}

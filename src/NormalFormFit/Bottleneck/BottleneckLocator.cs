@@ -1,0 +1,286 @@
+using NormalFormFit.Field;
+
+namespace NormalFormFit.Bottleneck;
+
+/// <summary>Options of the bottleneck fit.</summary>
+public sealed record BottleneckOptions
+{
+    /// <summary>Half-width of the fit window in units of the bottleneck width √(a/b).</summary>
+    public double WidthsPerHalfWindow { get; init; } = 1.5;
+
+    /// <summary>Smallest half-width (radians): below it noise dominates the curvature.</summary>
+    public double MinHalfWidth { get; init; } = 0.1;
+
+    /// <summary>Largest half-width (radians).</summary>
+    public double MaxHalfWidth { get; init; } = Math.PI / 2;
+
+    /// <summary>Bootstrap replicates over whole revolutions.</summary>
+    public int BootstrapReplicates { get; init; } = 400;
+
+    /// <summary>Seed of the bootstrap draws.</summary>
+    public int Seed { get; init; } = 7;
+
+    /// <summary>Defaults.</summary>
+    public static BottleneckOptions Default { get; } = new();
+}
+
+/// <summary>
+/// Finds the bottleneck (slowest phase) and fits θ̇ ≈ a + b(θ−θ*)² there.
+/// </summary>
+/// <remarks>
+/// Weighted least squares of c₀ + c₁x + c₂x² on samples with |x| ≤ w, x = θ − θ₀, each sample weighted by the
+/// phase it covers; then b = c₂, θ* = θ₀ − c₁/(2c₂), a = c₀ − c₁²/(4c₂) (vertex of the parabola). The
+/// half-width w follows the bottleneck's own width, w = k√(a/b) (iterated): a fixed wide window biases a
+/// upward by the field's quartic term (order w⁴), a narrow one is noisy. Standard errors: bootstrap over
+/// whole revolutions of per-revolution sufficient statistics (O(B·R) after one O(n) pass). Needs samples
+/// on both sides of θ* in at least two revolutions.
+/// </remarks>
+public static class BottleneckLocator
+{
+    private const int Stats = 9;
+
+    /// <summary>Fits the bottleneck, starting from the slowest bin of <paramref name="field"/>.</summary>
+    /// <returns>The fit, or null when no parabola opening upward fits (no bottleneck).</returns>
+    public static BottleneckFit? Locate(
+        ReadOnlySpan<double> phase,
+        ReadOnlySpan<double> velocity,
+        ReadOnlySpan<double> phaseWeight,
+        ReadOnlySpan<int> revolution,
+        int revolutions,
+        PhaseField field,
+        BottleneckOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(field);
+        options ??= BottleneckOptions.Default;
+        var centre = SlowestPhase(field);
+        if (double.IsNaN(centre))
+        {
+            return null;
+        }
+
+        var w = Math.Min(options.MaxHalfWidth, Math.PI / 4);
+        double[] total = [];
+        double[] perRev = [];
+        Vertex vertex = default;
+        for (var iter = 0; iter < 8; iter++)
+        {
+            perRev = Accumulate(phase, velocity, phaseWeight, revolution, revolutions, centre, w);
+            total = Sum(perRev, null, revolutions);
+            if (!TrySolve(total, w, out vertex) || !(vertex.B > 0))
+            {
+                return null;
+            }
+
+            centre = RevolutionBlocks.Wrap(centre + vertex.Shift);
+            var width = vertex.A > 0 ? Math.Sqrt(vertex.A / vertex.B) : 0.0;
+            var next = Math.Clamp(options.WidthsPerHalfWindow * width, options.MinHalfWidth, options.MaxHalfWidth);
+            var converged = Math.Abs(next - w) < 0.02 * w && Math.Abs(vertex.Shift) < 0.01 * w;
+            w = next;
+            if (converged)
+            {
+                break;
+            }
+        }
+
+        // Final pass centred on θ*, window fixed: point estimate and bootstrap.
+        perRev = Accumulate(phase, velocity, phaseWeight, revolution, revolutions, centre, w);
+        total = Sum(perRev, null, revolutions);
+        if (!TrySolve(total, w, out vertex) || !(vertex.B > 0))
+        {
+            return null;
+        }
+
+        var samples = (int)total[Stats];
+        var rms = ResidualRms(total, w);
+
+        var half = Accumulate(phase, velocity, phaseWeight, revolution, revolutions, RevolutionBlocks.Wrap(centre + vertex.Shift), w / 2);
+        var quartic = TrySolve(Sum(half, null, revolutions), w / 2, out var narrow) ? vertex.A - narrow.A : double.NaN;
+
+        var seA = double.NaN;
+        var seB = double.NaN;
+        var seShift = double.NaN;
+        if (revolutions >= 2)
+        {
+            var rng = new Random(options.Seed);
+            var draw = new int[revolutions];
+            var a = new List<double>(options.BootstrapReplicates);
+            var b = new List<double>(options.BootstrapReplicates);
+            var s = new List<double>(options.BootstrapReplicates);
+            for (var r = 0; r < options.BootstrapReplicates; r++)
+            {
+                Array.Clear(draw);
+                for (var k = 0; k < revolutions; k++)
+                {
+                    draw[rng.Next(revolutions)]++;
+                }
+
+                if (TrySolve(Sum(perRev, draw, revolutions), w, out var v) && v.B > 0)
+                {
+                    a.Add(v.A);
+                    b.Add(v.B);
+                    s.Add(v.Shift);
+                }
+            }
+
+            if (a.Count >= 0.9 * options.BootstrapReplicates)
+            {
+                seA = PhaseFieldEstimator.StandardDeviation(a);
+                seB = PhaseFieldEstimator.StandardDeviation(b);
+                seShift = PhaseFieldEstimator.StandardDeviation(s);
+            }
+        }
+
+        return new BottleneckFit(
+            new Estimate(RevolutionBlocks.Wrap(centre + vertex.Shift), seShift),
+            new Estimate(vertex.A, seA),
+            new Estimate(vertex.B, seB),
+            w,
+            samples,
+            rms,
+            quartic);
+    }
+
+    /// <summary>Slowest phase of the field, refined by a parabola through the slowest bin and its neighbours.</summary>
+    internal static double SlowestPhase(PhaseField field)
+    {
+        var v = field.Velocity;
+        var m = v.Length;
+        var j = -1;
+        for (var i = 0; i < m; i++)
+        {
+            if (double.IsFinite(v[i]) && (j < 0 || v[i] < v[j]))
+            {
+                j = i;
+            }
+        }
+
+        if (j < 0)
+        {
+            return double.NaN;
+        }
+
+        var l = v[(j - 1 + m) % m];
+        var r = v[(j + 1) % m];
+        var denom = l - (2 * v[j]) + r;
+        var offset = double.IsFinite(l) && double.IsFinite(r) && denom > 0 ? 0.5 * (l - r) / denom : 0.0;
+        return RevolutionBlocks.Wrap(field.Centres[j] + (Math.Clamp(offset, -0.5, 0.5) * field.BinWidth));
+    }
+
+    private readonly record struct Vertex(double A, double B, double Shift, double C0, double C1, double C2);
+
+    // Per revolution: Σw, Σwu, Σwu², Σwu³, Σwu⁴, Σwy, Σwuy, Σwu²y, Σwy², count; u = x/w scaled for conditioning.
+    private static double[] Accumulate(
+        ReadOnlySpan<double> phase,
+        ReadOnlySpan<double> velocity,
+        ReadOnlySpan<double> weight,
+        ReadOnlySpan<int> revolution,
+        int revolutions,
+        double centre,
+        double w)
+    {
+        var s = new double[revolutions * (Stats + 1)];
+        for (var i = 0; i < phase.Length; i++)
+        {
+            var x = RevolutionBlocks.WrapSigned(phase[i] - centre);
+            if (Math.Abs(x) > w)
+            {
+                continue;
+            }
+
+            var u = x / w;
+            var y = velocity[i];
+            var wt = weight[i];
+            var o = revolution[i] * (Stats + 1);
+            var u2 = u * u;
+            s[o] += wt;
+            s[o + 1] += wt * u;
+            s[o + 2] += wt * u2;
+            s[o + 3] += wt * u2 * u;
+            s[o + 4] += wt * u2 * u2;
+            s[o + 5] += wt * y;
+            s[o + 6] += wt * u * y;
+            s[o + 7] += wt * u2 * y;
+            s[o + 8] += wt * y * y;
+            s[o + 9] += 1;
+        }
+
+        return s;
+    }
+
+    private static double[] Sum(double[] perRev, int[]? multiplicity, int revolutions)
+    {
+        var t = new double[Stats + 1];
+        for (var r = 0; r < revolutions; r++)
+        {
+            var c = multiplicity is null ? 1 : multiplicity[r];
+            if (c == 0)
+            {
+                continue;
+            }
+
+            var o = r * (Stats + 1);
+            for (var k = 0; k <= Stats; k++)
+            {
+                t[k] += c * perRev[o + k];
+            }
+        }
+
+        return t;
+    }
+
+    private static bool TrySolve(double[] s, double w, out Vertex vertex)
+    {
+        vertex = default;
+        if (s[Stats] < 5)
+        {
+            return false;
+        }
+
+        // Normal equations [[S0 S1 S2][S1 S2 S3][S2 S3 S4]] c = [Y0 Y1 Y2], solved by Cramer's rule (3×3).
+        double a11 = s[0], a12 = s[1], a13 = s[2], a22 = s[2], a23 = s[3], a33 = s[4];
+        double r1 = s[5], r2 = s[6], r3 = s[7];
+        var det = (a11 * ((a22 * a33) - (a23 * a23))) - (a12 * ((a12 * a33) - (a23 * a13))) + (a13 * ((a12 * a23) - (a22 * a13)));
+        if (!(Math.Abs(det) > 1e-300) || !double.IsFinite(det))
+        {
+            return false;
+        }
+
+        var c0 = ((r1 * ((a22 * a33) - (a23 * a23))) - (a12 * ((r2 * a33) - (a23 * r3))) + (a13 * ((r2 * a23) - (a22 * r3)))) / det;
+        var c1 = ((a11 * ((r2 * a33) - (a23 * r3))) - (r1 * ((a12 * a33) - (a23 * a13))) + (a13 * ((a12 * r3) - (r2 * a13)))) / det;
+        var c2 = ((a11 * ((a22 * r3) - (r2 * a23))) - (a12 * ((a12 * r3) - (r2 * a13))) + (r1 * ((a12 * a23) - (a22 * a13)))) / det;
+
+        // Back from u = x/w to x.
+        var b1 = c1 / w;
+        var b2 = c2 / (w * w);
+        if (!(b2 > 0))
+        {
+            vertex = new Vertex(double.NaN, b2, 0, c0, c1, c2);
+            return true;
+        }
+
+        var shift = -b1 / (2 * b2);
+        if (Math.Abs(shift) > w)
+        {
+            // The vertex lies outside the window: move toward it without trusting the extrapolation.
+            shift = Math.Sign(shift) * w / 2;
+        }
+
+        vertex = new Vertex(c0 - (b1 * b1 / (4 * b2)), b2, shift, c0, c1, c2);
+        return double.IsFinite(vertex.A);
+    }
+
+    private static double ResidualRms(double[] s, double w)
+    {
+        if (!TrySolve(s, w, out var v) || s[0] <= 0)
+        {
+            return double.NaN;
+        }
+
+        // Σw(y − c·u)² = Σwy² − 2c·Y + cᵀSc.
+        double c0 = v.C0, c1 = v.C1, c2 = v.C2;
+        var fit = (c0 * s[5]) + (c1 * s[6]) + (c2 * s[7]);
+        var quad = (c0 * c0 * s[0]) + (2 * c0 * c1 * s[1]) + (((2 * c0 * c2) + (c1 * c1)) * s[2]) + (2 * c1 * c2 * s[3]) + (c2 * c2 * s[4]);
+        var rss = s[8] - (2 * fit) + quad;
+        return Math.Sqrt(Math.Max(rss, 0) / s[0]);
+    }
+}

@@ -1,0 +1,306 @@
+using System.Buffers;
+using System.Globalization;
+using System.Text;
+
+namespace NormalFormFit.Ingest;
+
+/// <summary>Field separator of a delimited text file.</summary>
+public enum Delimiter
+{
+    /// <summary>Detect from the header line: tab, then semicolon, then comma, else runs of blanks.</summary>
+    Auto,
+
+    /// <summary>Comma.</summary>
+    Comma,
+
+    /// <summary>Semicolon.</summary>
+    Semicolon,
+
+    /// <summary>Tab.</summary>
+    Tab,
+
+    /// <summary>One or more spaces or tabs.</summary>
+    Whitespace,
+}
+
+/// <summary>
+/// Streams a delimited text file as UTF-8 bytes, one record at a time, without building strings for the
+/// data lines. Skips blank lines and lines whose first non-blank character is <c>#</c>; accepts LF and
+/// CRLF line ends and a UTF-8 byte-order mark. Fields are trimmed of blanks. Cost O(file size), memory
+/// one buffer of the longest line.
+/// </summary>
+internal sealed class DelimitedTextReader : IDisposable
+{
+    private const int ChunkSize = 1 << 16;
+    private readonly Stream _stream;
+    private byte[] _buffer = ArrayPool<byte>.Shared.Rent(ChunkSize * 2);
+    private int _start;
+    private int _end;
+    private bool _eof;
+    private bool _first = true;
+    private int[] _fieldStarts = new int[16];
+    private int[] _fieldEnds = new int[16];
+    private int _lineOffset;
+    private int _lineLength;
+
+    public DelimitedTextReader(Stream stream, Delimiter delimiter)
+    {
+        _stream = stream;
+        Delimiter = delimiter;
+    }
+
+    /// <summary>The delimiter in use; resolved from <see cref="Delimiter.Auto"/> at the first record.</summary>
+    public Delimiter Delimiter { get; private set; }
+
+    /// <summary>1-based number of the line last returned.</summary>
+    public int LineNumber { get; private set; }
+
+    /// <summary>Number of fields of the record last read.</summary>
+    public int FieldCount { get; private set; }
+
+    /// <summary>The raw text of the current line (without line end).</summary>
+    public ReadOnlySpan<byte> Line => _buffer.AsSpan(_lineOffset, _lineLength);
+
+    /// <summary>Field <paramref name="i"/> of the current record, trimmed.</summary>
+    public ReadOnlySpan<byte> Field(int i) => Line[_fieldStarts[i].._fieldEnds[i]];
+
+    /// <summary>1-based column (character position) at which field <paramref name="i"/> starts.</summary>
+    public int ColumnOf(int i) => Encoding.UTF8.GetCharCount(Line[.._fieldStarts[i]]) + 1;
+
+    /// <summary>Field <paramref name="i"/> as a string (for headers and messages).</summary>
+    public string FieldText(int i) => Encoding.UTF8.GetString(Field(i));
+
+    /// <summary>True when the line holds a byte that never appears in text (NUL or other C0 controls but tab).</summary>
+    public bool LineLooksBinary()
+    {
+        foreach (var c in Line)
+        {
+            if (c < 0x20 && c != (byte)'\t' && c != (byte)'\r')
+            {
+                return true;
+            }
+        }
+
+        return !System.Text.Unicode.Utf8.IsValid(Line);
+    }
+
+    /// <summary>Reads the next non-blank, non-comment line and splits it. False at the end of the file.</summary>
+    public bool Read()
+    {
+        while (NextLine())
+        {
+            var line = Line;
+            var trimmed = line.Trim((byte)' ').Trim((byte)'\t');
+            if (trimmed.IsEmpty || trimmed[0] == (byte)'#')
+            {
+                continue;
+            }
+
+            if (Delimiter == Delimiter.Auto)
+            {
+                Delimiter = Detect(line);
+            }
+
+            Split(line);
+            return true;
+        }
+
+        return false;
+    }
+
+    private static Delimiter Detect(ReadOnlySpan<byte> line) =>
+        line.Contains((byte)'\t') && !line.Contains((byte)',') && !line.Contains((byte)';') ? Delimiter.Tab
+        : line.Contains((byte)';') ? Delimiter.Semicolon
+        : line.Contains((byte)',') ? Delimiter.Comma
+        : Delimiter.Whitespace;
+
+    private void Split(ReadOnlySpan<byte> line)
+    {
+        var count = 0;
+        if (Delimiter == Delimiter.Whitespace)
+        {
+            var i = 0;
+            while (i < line.Length)
+            {
+                while (i < line.Length && IsBlank(line[i]))
+                {
+                    i++;
+                }
+
+                if (i == line.Length)
+                {
+                    break;
+                }
+
+                var s = i;
+                while (i < line.Length && !IsBlank(line[i]))
+                {
+                    i++;
+                }
+
+                Add(ref count, s, i);
+            }
+        }
+        else
+        {
+            var sep = Delimiter switch
+            {
+                Delimiter.Comma => (byte)',',
+                Delimiter.Semicolon => (byte)';',
+                _ => (byte)'\t',
+            };
+            var s = 0;
+            while (true)
+            {
+                var k = line[s..].IndexOf(sep);
+                var e = k < 0 ? line.Length : s + k;
+                var (a, b) = TrimRange(line, s, e);
+                Add(ref count, a, b);
+                if (k < 0)
+                {
+                    break;
+                }
+
+                s = e + 1;
+            }
+        }
+
+        FieldCount = count;
+    }
+
+    private static (int Start, int End) TrimRange(ReadOnlySpan<byte> line, int s, int e)
+    {
+        while (s < e && IsBlank(line[s]))
+        {
+            s++;
+        }
+
+        while (e > s && IsBlank(line[e - 1]))
+        {
+            e--;
+        }
+
+        if (e - s >= 2 && line[s] == (byte)'"' && line[e - 1] == (byte)'"')
+        {
+            s++;
+            e--;
+        }
+
+        return (s, e);
+    }
+
+    private static bool IsBlank(byte b) => b == (byte)' ' || b == (byte)'\t';
+
+    private void Add(ref int count, int s, int e)
+    {
+        if (count == _fieldStarts.Length)
+        {
+            Array.Resize(ref _fieldStarts, count * 2);
+            Array.Resize(ref _fieldEnds, count * 2);
+        }
+
+        _fieldStarts[count] = s;
+        _fieldEnds[count] = e;
+        count++;
+    }
+
+    private bool NextLine()
+    {
+        while (true)
+        {
+            var available = _buffer.AsSpan(_start, _end - _start);
+            var nl = available.IndexOf((byte)'\n');
+            if (nl >= 0 || (_eof && available.Length > 0))
+            {
+                var len = nl >= 0 ? nl : available.Length;
+                _lineOffset = _start;
+                _lineLength = len;
+                if (len > 0 && available[len - 1] == (byte)'\r')
+                {
+                    _lineLength--;
+                }
+
+                if (_first)
+                {
+                    _first = false;
+                    if (Line.StartsWith("\uFEFF"u8))
+                    {
+                        _lineOffset += 3;
+                        _lineLength -= 3;
+                    }
+                }
+
+                _start += nl >= 0 ? nl + 1 : available.Length;
+                LineNumber++;
+                return true;
+            }
+
+            if (_eof)
+            {
+                return false;
+            }
+
+            Fill();
+        }
+    }
+
+    private void Fill()
+    {
+        var pending = _end - _start;
+        if (pending > 0 && _start > 0)
+        {
+            Buffer.BlockCopy(_buffer, _start, _buffer, 0, pending);
+        }
+
+        _start = 0;
+        _end = pending;
+        if (_buffer.Length - _end < ChunkSize)
+        {
+            var bigger = ArrayPool<byte>.Shared.Rent(_buffer.Length * 2);
+            Buffer.BlockCopy(_buffer, 0, bigger, 0, _end);
+            ArrayPool<byte>.Shared.Return(_buffer);
+            _buffer = bigger;
+        }
+
+        var n = _stream.Read(_buffer, _end, _buffer.Length - _end);
+        if (n == 0)
+        {
+            _eof = true;
+        }
+
+        _end += n;
+    }
+
+    /// <summary>Parses an invariant-culture floating-point number (or one with a decimal comma).</summary>
+    public static bool TryParseNumber(ReadOnlySpan<byte> field, bool decimalComma, out double value)
+    {
+        if (decimalComma && field.Contains((byte)','))
+        {
+            Span<byte> copy = stackalloc byte[Math.Min(field.Length, 128)];
+            if (field.Length > copy.Length)
+            {
+                value = double.NaN;
+                return false;
+            }
+
+            field.CopyTo(copy);
+            copy.Replace((byte)',', (byte)'.');
+            return double.TryParse(copy, NumberStyles.Float, CultureInfo.InvariantCulture, out value);
+        }
+
+        return double.TryParse(field, NumberStyles.Float, CultureInfo.InvariantCulture, out value);
+    }
+
+    /// <summary>True for the spellings of a missing value: empty, NaN, NA, null.</summary>
+    public static bool IsMissing(ReadOnlySpan<byte> field) =>
+        field.IsEmpty
+        || Ascii.EqualsIgnoreCase(field, "nan"u8)
+        || Ascii.EqualsIgnoreCase(field, "na"u8)
+        || Ascii.EqualsIgnoreCase(field, "null"u8);
+
+    public void Dispose()
+    {
+        ArrayPool<byte>.Shared.Return(_buffer);
+        _buffer = [];
+    }
+}

@@ -1,0 +1,88 @@
+namespace NormalFormFit.Onset;
+
+/// <summary>A polynomial trend y(μ) fitted by weighted least squares, with its covariance.</summary>
+/// <param name="Coefficients">c₀, c₁[, c₂] of y = Σ cₖ (μ − μ₀)ᵏ.</param>
+/// <param name="Covariance">Covariance of the coefficients (already scaled by the reduced χ² when <see cref="Scaled"/>).</param>
+/// <param name="Origin">μ₀, the centre of the parameter values (for conditioning).</param>
+/// <param name="ReducedChiSquare">χ²/(n − p) against the per-run standard errors.</param>
+/// <param name="DegreesOfFreedom">n − p.</param>
+/// <param name="Scaled">True when the covariance was scaled by the reduced χ² (Birge ratio) and Student-t quantiles apply.</param>
+public sealed record Trend(double[] Coefficients, double[,] Covariance, double Origin, double ReducedChiSquare, int DegreesOfFreedom, bool Scaled)
+{
+    /// <summary>Polynomial degree.</summary>
+    public int Degree => Coefficients.Length - 1;
+
+    /// <summary>y(μ).</summary>
+    public double Evaluate(double mu)
+    {
+        var x = mu - Origin;
+        var y = 0.0;
+        for (var k = Coefficients.Length - 1; k >= 0; k--)
+        {
+            y = (y * x) + Coefficients[k];
+        }
+
+        return y;
+    }
+
+    /// <summary>dy/dμ.</summary>
+    public double Slope(double mu)
+    {
+        var x = mu - Origin;
+        var y = 0.0;
+        for (var k = Coefficients.Length - 1; k >= 1; k--)
+        {
+            y = (y * x) + (k * Coefficients[k]);
+        }
+
+        return y;
+    }
+
+    /// <summary>Variance of y(μ) from the coefficient covariance.</summary>
+    public double Variance(double mu)
+    {
+        var x = mu - Origin;
+        var p = Coefficients.Length;
+        Span<double> g = stackalloc double[p];
+        g[0] = 1;
+        for (var k = 1; k < p; k++)
+        {
+            g[k] = g[k - 1] * x;
+        }
+
+        var v = 0.0;
+        for (var i = 0; i < p; i++)
+        {
+            for (var j = 0; j < p; j++)
+            {
+                v += g[i] * Covariance[i, j] * g[j];
+            }
+        }
+
+        return Math.Max(v, 0);
+    }
+}
+
+/// <summary>An onset estimate μc from one route.</summary>
+/// <param name="Route">"bottleneck" (a → 0) or "period" (T⁻² → 0).</param>
+/// <param name="Value">μc.</param>
+/// <param name="StandardError">Delta-method standard error, sd(y(μc))/|y′(μc)|.</param>
+/// <param name="Ci95">95% interval by inverting the test of y(μ) = 0 (Fieller 1954 for a straight line).</param>
+/// <param name="Runs">Runs used.</param>
+/// <param name="Trend">The fitted trend.</param>
+/// <param name="Diagnostics">What qualifies the estimate.</param>
+public sealed record OnsetEstimate(string Route, double Value, double StandardError, Interval Ci95, int Runs, Trend? Trend, IReadOnlyList<Diagnostic> Diagnostics)
+{
+    /// <summary>True when a finite value was obtained.</summary>
+    public bool IsAvailable => double.IsFinite(Value);
+
+    /// <summary>An estimate that could not be made, with the reason.</summary>
+    public static OnsetEstimate NotAvailable(string route, int runs, Diagnostic why) =>
+        new(route, double.NaN, double.NaN, new Interval(double.NaN, double.NaN), runs, null, [why]);
+}
+
+/// <summary>Agreement of two onset estimates: z = (μ₁ − μ₂)/√(σ₁² + σ₂²), consistent when |z| ≤ 2.</summary>
+/// <param name="Z">The z statistic (NaN when either estimate is missing).</param>
+/// <param name="Consistent">|z| ≤ 2.</param>
+/// <param name="Reason">The most likely reason for a disagreement, in plain words; null when consistent.</param>
+public sealed record OnsetAgreement(double Z, bool Consistent, string? Reason);

@@ -1,0 +1,223 @@
+using MathNet.Numerics.Distributions;
+using MathNet.Numerics.LinearAlgebra;
+
+namespace NormalFormFit.Onset;
+
+/// <summary>One observation of a trend: parameter, value, standard error.</summary>
+/// <param name="Mu">Control parameter.</param>
+/// <param name="Y">Observed value (a, or T⁻²).</param>
+/// <param name="StandardError">Its standard error.</param>
+public readonly record struct TrendPoint(double Mu, double Y, double StandardError);
+
+/// <summary>
+/// Weighted polynomial trends and their roots with test-inversion intervals.
+/// </summary>
+/// <remarks>
+/// Fit: weighted least squares y = Σ cₖ(μ−μ₀)ᵏ with weights 1/σᵢ² (QR, MathNet). The covariance is scaled by the
+/// reduced χ² (Birge ratio) so that a common misstatement of the per-run errors does not spoil the interval,
+/// and quantiles are Student-t with n − p degrees of freedom. Root: the zero of the trend nearest the data.
+/// Interval: all μ where |y(μ)| ≤ t·sd(y(μ)), the connected part holding the root — Fieller's theorem
+/// (Fieller 1954) for a straight line, its test-inversion generalisation for a quadratic. Degree 1 or 2 by
+/// AICc (Hurvich &amp; Tsai 1989) with the variance estimated. Minimum: three points.
+/// </remarks>
+public static class TrendFit
+{
+    /// <summary>Fits a polynomial trend of the given degree. Needs at least degree + 1 points.</summary>
+    public static Trend Fit(IReadOnlyList<TrendPoint> points, int degree)
+    {
+        ArgumentNullException.ThrowIfNull(points);
+        var n = points.Count;
+        var p = degree + 1;
+        if (n < p)
+        {
+            throw new ArgumentException($"need at least {p} points for degree {degree}", nameof(points));
+        }
+
+        var origin = points.Average(q => q.Mu);
+        var x = Matrix<double>.Build.Dense(n, p);
+        var y = Vector<double>.Build.Dense(n);
+        for (var i = 0; i < n; i++)
+        {
+            var sw = 1.0 / points[i].StandardError;
+            var d = points[i].Mu - origin;
+            var g = 1.0;
+            for (var k = 0; k < p; k++)
+            {
+                x[i, k] = g * sw;
+                g *= d;
+            }
+
+            y[i] = points[i].Y * sw;
+        }
+
+        var qr = x.QR();
+        var c = qr.Solve(y);
+        var chi2 = (y - (x * c)).DotProduct(y - (x * c));
+        var dof = n - p;
+        var rInv = qr.R.Inverse();
+        var cov = rInv * rInv.Transpose();
+        var red = dof > 0 ? chi2 / dof : double.NaN;
+        var scaled = dof > 0;
+        if (scaled)
+        {
+            cov *= red;
+        }
+
+        return new Trend(c.ToArray(), cov.ToArray(), origin, red, dof, scaled);
+    }
+
+    /// <summary>AICc of a weighted fit with the variance scale estimated (k = p + 1 parameters).</summary>
+    public static double Aicc(Trend trend, int n)
+    {
+        ArgumentNullException.ThrowIfNull(trend);
+        var k = trend.Coefficients.Length + 1;
+        if (n - k - 1 <= 0)
+        {
+            return double.PositiveInfinity;
+        }
+
+        var rss = trend.ReducedChiSquare * trend.DegreesOfFreedom;
+        return (n * Math.Log(Math.Max(rss, 1e-300) / n)) + (2 * k) + (2.0 * k * (k + 1) / (n - k - 1));
+    }
+
+    /// <summary>
+    /// Estimates the root μc of the trend through <paramref name="points"/>; degree 1, or 2 when AICc prefers
+    /// it (only with five points or more, so that two degrees of freedom remain).
+    /// </summary>
+    public static OnsetEstimate Root(string route, IReadOnlyList<TrendPoint> points, bool allowCurvature = true)
+    {
+        ArgumentNullException.ThrowIfNull(points);
+        var diags = new List<Diagnostic>();
+        var n = points.Count;
+        if (n < 3)
+        {
+            return OnsetEstimate.NotAvailable(route, n, new Diagnostic(Severity.Warning, "too-few-runs",
+                $"the {route} route needs at least three usable runs, found {n}"));
+        }
+
+        var trend = Fit(points, 1);
+        if (allowCurvature && n >= 5)
+        {
+            var quad = Fit(points, 2);
+            if (Aicc(quad, n) < Aicc(trend, n))
+            {
+                trend = quad;
+                diags.Add(new Diagnostic(Severity.Info, "curved-trend",
+                    $"the {route} route uses a trend with a curvature term (preferred by AICc over a straight line)"));
+            }
+        }
+
+        var root = NearestRoot(trend, points);
+        if (double.IsNaN(root))
+        {
+            diags.Add(new Diagnostic(Severity.Warning, "no-root",
+                $"the {route} trend does not reach zero near the data; the runs may be far from onset or the trend flat"));
+            return new OnsetEstimate(route, double.NaN, double.NaN, new Interval(double.NaN, double.NaN), n, trend, diags);
+        }
+
+        var slope = trend.Slope(root);
+        var se = Math.Sqrt(trend.Variance(root)) / Math.Abs(slope);
+        var q = trend.Scaled ? StudentT.InvCDF(0, 1, trend.DegreesOfFreedom, 0.975) : Normal.InvCDF(0, 1, 0.975);
+        if (!trend.Scaled)
+        {
+            diags.Add(new Diagnostic(Severity.Warning, "no-residual-dof",
+                $"the {route} trend has no residual degrees of freedom; its interval rests on the per-run errors alone"));
+        }
+
+        var span = points.Max(r => r.Mu) - points.Min(r => r.Mu);
+        var ci = InvertTest(trend, root, q, Math.Max(span, Math.Abs(root) * 1e-6 + 1e-12));
+        if (double.IsInfinity(ci.Low) || double.IsInfinity(ci.High))
+        {
+            diags.Add(new Diagnostic(Severity.Warning, "unbounded-interval",
+                $"the data cannot bound the onset on one side by the {route} route (the trend is not significantly sloped); measure closer to onset"));
+        }
+
+        return new OnsetEstimate(route, root, se, ci, n, trend, diags);
+    }
+
+    /// <summary>The zero of the trend nearest the point with the smallest |y|.</summary>
+    internal static double NearestRoot(Trend trend, IReadOnlyList<TrendPoint> points)
+    {
+        var anchor = points.MinBy(p => Math.Abs(p.Y)).Mu;
+        var c = trend.Coefficients;
+        var x0 = trend.Origin;
+        if (trend.Degree == 1)
+        {
+            return c[1] == 0 ? double.NaN : x0 - (c[0] / c[1]);
+        }
+
+        var disc = (c[1] * c[1]) - (4 * c[2] * c[0]);
+        if (disc < 0 || c[2] == 0)
+        {
+            return c[1] == 0 ? double.NaN : x0 - (c[0] / c[1]);
+        }
+
+        // Numerically stable quadratic roots (Press et al., Numerical Recipes 3rd ed., §5.6).
+        var qv = -0.5 * (c[1] + (Math.Sign(c[1] == 0 ? 1 : c[1]) * Math.Sqrt(disc)));
+        var r1 = x0 + (qv / c[2]);
+        var r2 = qv != 0 ? x0 + (c[0] / qv) : r1;
+        return Math.Abs(r1 - anchor) <= Math.Abs(r2 - anchor) ? r1 : r2;
+    }
+
+    /// <summary>Connected set around <paramref name="root"/> where y(μ)² ≤ q²·Var y(μ).</summary>
+    internal static Interval InvertTest(Trend trend, double root, double q, double span)
+    {
+        double G(double mu)
+        {
+            var y = trend.Evaluate(mu);
+            return (y * y) - (q * q * trend.Variance(mu));
+        }
+
+        double Edge(int direction)
+        {
+            var step = span * 1e-3;
+            var inside = root;
+            var limit = 100 * span;
+            while (step <= limit)
+            {
+                var probe = root + (direction * step);
+                if (G(probe) > 0)
+                {
+                    // Bisect between inside and probe.
+                    double lo = inside, hi = probe;
+                    for (var k = 0; k < 100 && Math.Abs(hi - lo) > 1e-13 * (1 + Math.Abs(root)); k++)
+                    {
+                        var mid = 0.5 * (lo + hi);
+                        if (G(mid) > 0)
+                        {
+                            hi = mid;
+                        }
+                        else
+                        {
+                            lo = mid;
+                        }
+                    }
+
+                    return 0.5 * (lo + hi);
+                }
+
+                inside = probe;
+                step *= 1.25;
+            }
+
+            return direction * double.PositiveInfinity;
+        }
+
+        return new Interval(Edge(-1), Edge(+1));
+    }
+
+    /// <summary>z = (μ₁ − μ₂)/√(σ₁² + σ₂²) and |z| ≤ 2.</summary>
+    public static OnsetAgreement Agreement(OnsetEstimate first, OnsetEstimate second, string? reasonIfNot)
+    {
+        ArgumentNullException.ThrowIfNull(first);
+        ArgumentNullException.ThrowIfNull(second);
+        if (!first.IsAvailable || !second.IsAvailable)
+        {
+            return new OnsetAgreement(double.NaN, false, "one of the routes gave no estimate");
+        }
+
+        var z = (first.Value - second.Value) / Math.Sqrt((first.StandardError * first.StandardError) + (second.StandardError * second.StandardError));
+        var ok = Math.Abs(z) <= 2;
+        return new OnsetAgreement(z, ok, ok ? null : reasonIfNot);
+    }
+}

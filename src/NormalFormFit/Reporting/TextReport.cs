@@ -1,0 +1,111 @@
+using System.Globalization;
+using System.Text;
+using NormalFormFit.Analysis;
+using NormalFormFit.Onset;
+
+namespace NormalFormFit.Reporting;
+
+/// <summary>The human-readable summary: the answer first, then the per-run table, then the diagnostics.</summary>
+public static class TextReport
+{
+    /// <summary>The caution printed with every result.</summary>
+    public const string Caution =
+        "Caution: these estimates inform engineering judgement; they do not replace it. Before operating rotating machinery, " +
+        "power or electrical equipment near a computed onset, follow local codes and the practice of qualified, licensed personnel.";
+
+    private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
+
+    /// <summary>Formats the report.</summary>
+    public static string Format(AnalysisReport report)
+    {
+        ArgumentNullException.ThrowIfNull(report);
+        var sb = new StringBuilder();
+        var u = report.ParamUnits is null ? string.Empty : " " + report.ParamUnits;
+        sb.AppendLine("Onset (95% intervals)");
+        sb.AppendLine(Onset("  from bottleneck (a → 0):  ", report.FromBottleneck, u));
+        sb.AppendLine(Onset("  from period   (T⁻² → 0):  ", report.FromPeriod, u));
+        var ag = report.Agreement;
+        sb.AppendLine(double.IsFinite(ag.Z)
+            ? string.Create(Inv, $"  agreement:                 z = {ag.Z:F2}, {(ag.Consistent ? "consistent" : "DISAGREE: " + ag.Reason)}")
+            : "  agreement:                 not available");
+        if (report.Scaling is { } s)
+        {
+            sb.AppendLine(string.Create(Inv, $"  scaling T ∝ (μ−μc)^−β:     β = {s.Exponent.Value:F3}  [{s.Ci95.Low:F3}, {s.Ci95.High:F3}]"));
+            sb.AppendLine($"  kind of onset:             {s.Verdict}");
+            sb.AppendLine($"                             {s.Evidence}");
+        }
+        else
+        {
+            sb.AppendLine("  scaling:                   not available (needs four runs with timed periods)");
+        }
+
+        sb.AppendLine();
+        var header = new[] { "param", "θ*", "a", "±", "b", "±", "T meas", "±", "π/√(ab)", "∮dθ/θ̇", "revs", "flags" };
+        var rows = new List<string[]> { header };
+        foreach (var r in report.Runs)
+        {
+            var b = r.Bottleneck;
+            var p = r.Period;
+            rows.Add(
+            [
+                G(r.Param, 6),
+                b is null ? "–" : F(b.Phase.Value, 3),
+                b is null ? "–" : G(b.A.Value, 4),
+                b is null ? "–" : G(b.A.StandardError, 2),
+                b is null ? "–" : G(b.B.Value, 4),
+                b is null ? "–" : G(b.B.StandardError, 2),
+                p is null ? "–" : G(p.Measured.Value, 5),
+                p is null ? "–" : G(p.Measured.StandardError, 2),
+                p is null ? "–" : G(p.FromBottleneck.Value, 5),
+                p is null ? "–" : G(p.FromField.Value, 5),
+                (p?.Revolutions ?? 0).ToString(Inv),
+                r.Flags.Count == 0 ? "ok" : string.Join(",", r.Flags),
+            ]);
+        }
+
+        var widths = Enumerable.Range(0, header.Length).Select(c => rows.Max(row => row[c].Length)).ToArray();
+        foreach (var row in rows)
+        {
+            var line = new StringBuilder("  ");
+            for (var c = 0; c < row.Length; c++)
+            {
+                var cell = c == row.Length - 1 ? row[c] : row[c].PadLeft(widths[c]);
+                line.Append(cell).Append(c == row.Length - 1 ? string.Empty : "  ");
+            }
+
+            sb.AppendLine(line.ToString().TrimEnd());
+        }
+
+        var diags = report.AllDiagnostics.Where(d => d.Severity != Severity.Info).ToList();
+        if (diags.Count > 0)
+        {
+            sb.AppendLine();
+            sb.AppendLine("Diagnostics");
+            foreach (var d in diags)
+            {
+                sb.Append("  ").AppendLine(d.ToString());
+            }
+        }
+
+        sb.AppendLine();
+        sb.AppendLine(Caution);
+        return sb.ToString();
+    }
+
+    private static string Onset(string label, OnsetEstimate e, string units)
+    {
+        if (!e.IsAvailable)
+        {
+            var why = e.Diagnostics.FirstOrDefault()?.Message ?? "not available";
+            return label + "not available: " + why;
+        }
+
+        return string.Create(Inv, $"{label}μc = {e.Value:G6}{units}  [{B(e.Ci95.Low)}, {B(e.Ci95.High)}]  (±{e.StandardError:G2}, {e.Runs} runs, trend degree {e.Trend?.Degree})");
+    }
+
+    private static string B(double x) => double.IsFinite(x) ? x.ToString("G6", Inv) : (x > 0 ? "+∞" : "−∞");
+
+    private static string G(double x, int digits) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
+
+    private static string F(double x, int digits) => double.IsFinite(x) ? x.ToString("F" + digits.ToString(Inv), Inv) : "–";
+}
