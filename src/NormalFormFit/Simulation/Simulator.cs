@@ -1,0 +1,253 @@
+namespace NormalFormFit.Simulation;
+
+/// <summary>Synthetic phase recordings from a phase model, with optional dynamic and measurement noise.</summary>
+public static class Simulator
+{
+    private const double MaxPhaseStep = 0.01;   // rad moved per integration step (h·max|f|)
+    private const double MaxStiffnessStep = 0.01; // h·max|∂f/∂θ|
+    private const double MaxNoiseKick = 0.1;    // rad, SD of one Euler–Maruyama kick √(2Dh)
+    private const int MinSubsteps = 4;
+    private const int SpeedGridPoints = 1024;
+
+    /// <summary>Simulates one run of <paramref name="model"/> at <c>options.Mu</c>.</summary>
+    /// <remarks>
+    /// Without dynamic noise: classical fourth-order Runge–Kutta (RK4) with a fixed step.
+    /// With D &gt; 0: Euler–Maruyama for dθ = f dt + √(2D) dW (Kloeden &amp; Platen 1992), additive noise, so strong
+    /// order 1. The step is SamplingInterval / Substeps (see <see cref="SimulationOptions.Substeps"/>).
+    /// The run stops at the first sample where the phase has moved <see cref="SimulationOptions.Revolutions"/> whole
+    /// turns from its start, or at MaxDuration (below onset it settles and has zero revolutions).
+    /// Random draws come from <see cref="Random"/> seeded by <see cref="SimulationOptions.Seed"/>, with separate
+    /// streams for the dynamics (initial phase first) and the measurement, so switching measurement noise on leaves
+    /// <see cref="SimulatedRun.TruePhase"/> unchanged. Single-threaded and deterministic: the same options give the
+    /// same bits on the same runtime and math library. Cost O(samples × substeps).
+    /// </remarks>
+    /// <param name="model">The phase model.</param>
+    /// <param name="options">Run settings; validated first.</param>
+    /// <returns>The run.</returns>
+    /// <exception cref="ArgumentException">The options are invalid (the message lists every problem).</exception>
+    public static SimulatedRun Run(IPhaseModel model, SimulationOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(options);
+        options.ThrowIfInvalid();
+
+        var mu = options.Mu;
+        var dt = options.SamplingInterval;
+        var dynamics = GaussianSource.Create(options.Seed, stream: 0);
+        var theta0 = options.InitialPhase ?? (Math.PI - (2.0 * Math.PI * dynamics.Uniform.NextDouble()));
+        var maxDuration = options.MaxDuration ?? DefaultMaxDuration(model, options);
+        var lastIndex = (long)Math.Floor((maxDuration / dt) + 1e-9);
+        if (lastIndex + 1 > SimulationOptions.MaxSamples)
+        {
+            throw new ArgumentException(
+                $"The run could need {lastIndex + 1} samples, more than {SimulationOptions.MaxSamples}; set MaxDuration or a larger SamplingInterval.",
+                nameof(options));
+        }
+
+        var substeps = options.Substeps ?? DefaultSubsteps(model, options);
+        var resolved = options with { InitialPhase = theta0, MaxDuration = maxDuration, Substeps = substeps };
+
+        var truePhase = Integrate(model, resolved, theta0, lastIndex, dynamics, out var reached);
+        var n = truePhase.Length;
+        var time = SampleTimes(dt, n);
+        var phase = Record(truePhase, options.MeasurementNoise, options.WrapPhase, options.Seed);
+        var turns = (int)Math.Floor(Math.Abs(truePhase[n - 1] - theta0) / (2.0 * Math.PI));
+        return new SimulatedRun(model.Name, mu, time, phase, truePhase, turns, reached, resolved);
+    }
+
+    /// <summary>
+    /// The duration guard used when <see cref="SimulationOptions.MaxDuration"/> is null: three times
+    /// Revolutions × period when <see cref="IPhaseModel.ExactPeriod"/> knows the period at μ, but at least
+    /// <see cref="SimulationOptions.FallbackMaxDuration"/>; otherwise that fallback.
+    /// </summary>
+    /// <param name="model">The model.</param>
+    /// <param name="options">The options (μ, revolutions).</param>
+    /// <returns>The duration in time units.</returns>
+    public static double DefaultMaxDuration(IPhaseModel model, SimulationOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(options);
+        var period = model.ExactPeriod(options.Mu);
+        return period is { } p && double.IsFinite(p) && p > 0.0
+            ? Math.Max(SimulationOptions.FallbackMaxDuration, 3.0 * options.Revolutions * p)
+            : SimulationOptions.FallbackMaxDuration;
+    }
+
+    /// <summary>
+    /// The substep count used when <see cref="SimulationOptions.Substeps"/> is null: the smallest count, at least 4,
+    /// with h·max|f| ≤ 0.01, h·max|∂f/∂θ| ≤ 0.01 and √(2Dh) ≤ 0.1, where h = SamplingInterval / substeps and the
+    /// maxima are taken over a grid of 1024 phases.
+    /// </summary>
+    /// <param name="model">The model.</param>
+    /// <param name="options">The options (μ, sampling interval, dynamic noise).</param>
+    /// <returns>The number of integration steps per sample.</returns>
+    public static int DefaultSubsteps(IPhaseModel model, SimulationOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(options);
+        var (maxSpeed, maxSlope) = SpeedBounds(model, options.Mu);
+        var dt = options.SamplingInterval;
+        var needed = Math.Max(dt * maxSpeed / MaxPhaseStep, dt * maxSlope / MaxStiffnessStep);
+        if (options.DynamicNoise > 0.0)
+        {
+            needed = Math.Max(needed, 2.0 * options.DynamicNoise * dt / (MaxNoiseKick * MaxNoiseKick));
+        }
+
+        if (!double.IsFinite(needed) || needed > int.MaxValue)
+        {
+            throw new ArgumentException(
+                $"Model '{model.Name}' at this μ needs {needed:G3} steps per sample; set Substeps or a smaller SamplingInterval.",
+                nameof(options));
+        }
+
+        return Math.Max(MinSubsteps, (int)Math.Ceiling(needed));
+    }
+
+    private static (double MaxSpeed, double MaxSlope) SpeedBounds(IPhaseModel model, double mu)
+    {
+        const double eps = 1e-6;
+        double maxSpeed = 0.0, maxSlope = 0.0;
+        for (var k = 0; k < SpeedGridPoints; k++)
+        {
+            var theta = (2.0 * Math.PI * k / SpeedGridPoints) - Math.PI;
+            maxSpeed = Math.Max(maxSpeed, Math.Abs(model.Velocity(theta, mu)));
+            var slope = (model.Velocity(theta + eps, mu) - model.Velocity(theta - eps, mu)) / (2.0 * eps);
+            maxSlope = Math.Max(maxSlope, Math.Abs(slope));
+        }
+
+        return (maxSpeed, maxSlope);
+    }
+
+    private static double[] Integrate(
+        IPhaseModel model,
+        SimulationOptions o,
+        double theta0,
+        long lastIndex,
+        GaussianSource noise,
+        out bool reached)
+    {
+        var mu = o.Mu;
+        var m = o.Substeps!.Value;
+        var h = o.SamplingInterval / m;
+        var target = 2.0 * Math.PI * o.Revolutions;
+        var kick = Math.Sqrt(2.0 * o.DynamicNoise * h);
+        var stochastic = o.DynamicNoise > 0.0;
+
+        var buffer = new double[InitialCapacity(model, o, lastIndex)];
+        buffer[0] = theta0;
+        var theta = theta0;
+        var n = 1;
+        reached = false;
+        for (long i = 1; i <= lastIndex; i++)
+        {
+            if (stochastic)
+            {
+                for (var s = 0; s < m; s++)
+                {
+                    // Euler–Maruyama (Kloeden & Platen 1992): θ += f(θ)h + √(2Dh)·Z.
+                    theta += (model.Velocity(theta, mu) * h) + (kick * noise.Next());
+                }
+            }
+            else
+            {
+                for (var s = 0; s < m; s++)
+                {
+                    // Classical RK4.
+                    var k1 = model.Velocity(theta, mu);
+                    var k2 = model.Velocity(theta + (0.5 * h * k1), mu);
+                    var k3 = model.Velocity(theta + (0.5 * h * k2), mu);
+                    var k4 = model.Velocity(theta + (h * k3), mu);
+                    theta += h / 6.0 * (k1 + (2.0 * k2) + (2.0 * k3) + k4);
+                }
+            }
+
+            if (n == buffer.Length)
+            {
+                Array.Resize(ref buffer, (int)Math.Min(2L * buffer.Length, lastIndex + 1));
+            }
+
+            buffer[n++] = theta;
+            if (Math.Abs(theta - theta0) >= target)
+            {
+                reached = true;
+                break;
+            }
+        }
+
+        if (n != buffer.Length)
+        {
+            Array.Resize(ref buffer, n);
+        }
+
+        return buffer;
+    }
+
+    private static int InitialCapacity(IPhaseModel model, SimulationOptions o, long lastIndex)
+    {
+        var expected = model.ExactPeriod(o.Mu) is { } p && double.IsFinite(p)
+            ? (1.05 * o.Revolutions * p / o.SamplingInterval) + 64.0
+            : 65_536.0;
+        return (int)Math.Min(lastIndex + 1, Math.Max(2.0, expected));
+    }
+
+    /// <summary>
+    /// Time[i] = i × dt computed in decimal when dt converts to decimal exactly, so that files show 0.03 rather than
+    /// 0.030000000000000002; otherwise in double.
+    /// </summary>
+    private static double[] SampleTimes(double dt, int n)
+    {
+        var time = new double[n];
+        var exact = false;
+        var step = 0m;
+        try
+        {
+            step = (decimal)dt;
+            exact = (double)step == dt;
+        }
+        catch (OverflowException)
+        {
+            exact = false;
+        }
+
+        for (var i = 0; i < n; i++)
+        {
+            time[i] = exact ? (double)(step * i) : i * dt;
+        }
+
+        return time;
+    }
+
+    private static double[] Record(double[] truePhase, double sigma, bool wrap, int seed)
+    {
+        var phase = new double[truePhase.Length];
+        var noise = sigma > 0.0 ? GaussianSource.Create(seed, stream: 1) : null;
+        for (var i = 0; i < phase.Length; i++)
+        {
+            var value = truePhase[i];
+            if (noise is not null)
+            {
+                value += sigma * noise.Next();
+            }
+
+            phase[i] = wrap ? Wrap(value) : value;
+        }
+
+        return phase;
+    }
+
+    /// <summary>θ wrapped to (−π, π].</summary>
+    internal static double Wrap(double theta)
+    {
+        var w = theta - (2.0 * Math.PI * Math.Ceiling((theta - Math.PI) / (2.0 * Math.PI)));
+        if (w <= -Math.PI)
+        {
+            w += 2.0 * Math.PI;
+        }
+        else if (w > Math.PI)
+        {
+            w -= 2.0 * Math.PI;
+        }
+
+        return w;
+    }
+}
