@@ -102,16 +102,23 @@ public static class RunAnalyzer
             return new RunResult(file, param, label, n, duration, turns, trajectory.Direction, smoothing, null, null, null, flags, diags);
         }
 
-        var weight = PhaseWeights(ph, segs);
-
-        // Preliminary field with arbitrary revolution cut → slowest phase → final blocks cut on the fast side.
+        // Weights never depend on the noisy θ̇ itself (a weight ∝ θ̇ would bias every mean upward by var/mean):
+        // the bottleneck fit weights samples by the time they cover; the field weights them by the time they
+        // cover times a preliminary (time-weighted) field, which makes each bin a mean over phase.
+        var dtWeight = HalfCentralDifferences(tt, segs);
         var prelimLabels = RevolutionBlocks.Label(ph, 0.0, out var prelimCount);
-        var prelim = PhaseFieldEstimator.Estimate(ph, v, weight, prelimLabels, prelimCount, options.Field with { BootstrapReplicates = 0 });
+        var prelim = PhaseFieldEstimator.Estimate(ph, v, dtWeight, prelimLabels, prelimCount, options.Field with { BootstrapReplicates = 0 });
         var slow = BottleneckLocator.SlowestPhase(prelim);
         var cut = double.IsFinite(slow) ? slow + Math.PI : 0.0;
         var labels = RevolutionBlocks.Label(ph, cut, out var blocks);
-        var field = PhaseFieldEstimator.Estimate(ph, v, weight, labels, blocks, options.Field with { Bins = prelim.Centres.Length });
-        var bottleneck = BottleneckLocator.Locate(ph, v, weight, labels, blocks, field, options.Bottleneck);
+        var phaseWeight = new double[ph.Length];
+        for (var i = 0; i < ph.Length; i++)
+        {
+            phaseWeight[i] = dtWeight[i] * Math.Max(prelim.Interpolate(ph[i]), 0);
+        }
+
+        var field = PhaseFieldEstimator.Estimate(ph, v, phaseWeight, labels, blocks, options.Field with { Bins = prelim.Centres.Length });
+        var bottleneck = BottleneckLocator.Locate(ph, v, dtWeight, labels, blocks, field, options.Bottleneck);
         if (bottleneck is null)
         {
             flags.Add(RunFlags.NoBottleneck);
@@ -196,18 +203,18 @@ public static class RunAnalyzer
         return [.. starts];
     }
 
-    /// <summary>Phase covered by each sample: half the central difference (one-sided at segment ends).</summary>
-    private static double[] PhaseWeights(double[] ph, int[] segs)
+    /// <summary>Half the central difference of <paramref name="x"/> at each sample (one-sided at segment ends).</summary>
+    private static double[] HalfCentralDifferences(double[] x, int[] segs)
     {
-        var w = new double[ph.Length];
+        var w = new double[x.Length];
         for (var k = 0; k < segs.Length; k++)
         {
             var s = segs[k];
-            var e = k + 1 < segs.Length ? segs[k + 1] : ph.Length;
+            var e = k + 1 < segs.Length ? segs[k + 1] : x.Length;
             for (var i = s; i < e; i++)
             {
-                var lo = i > s ? ph[i - 1] : ph[i];
-                var hi = i + 1 < e ? ph[i + 1] : ph[i];
+                var lo = i > s ? x[i - 1] : x[i];
+                var hi = i + 1 < e ? x[i + 1] : x[i];
                 w[i] = Math.Max(0.5 * (hi - lo), 0);
             }
         }

@@ -13,4 +13,21 @@ public sealed record PhaseField(double[] Centres, double[] Velocity, double[] St
 {
     /// <summary>Bin width in radians.</summary>
     public double BinWidth => 2.0 * Math.PI / Centres.Length;
+
+    /// <summary>θ̇ at any phase by periodic linear interpolation between bin centres (skipping empty bins).</summary>
+    public double Interpolate(double phase)
+    {
+        var m = Centres.Length;
+        var x = RevolutionBlocks.Wrap(phase) / BinWidth - 0.5;
+        var j = (int)Math.Floor(x);
+        var f = x - j;
+        var lo = Velocity[((j % m) + m) % m];
+        var hi = Velocity[(((j + 1) % m) + m) % m];
+        if (!double.IsFinite(lo))
+        {
+            return hi;
+        }
+
+        return double.IsFinite(hi) ? lo + (f * (hi - lo)) : lo;
+    }
 }

@@ -95,6 +95,7 @@ public static class TrendFit
                 $"the {route} route needs at least three usable runs, found {n}"));
         }
 
+        points = SmoothErrors(points);
         var trend = Fit(points, 1);
         if (allowCurvature && n >= 5)
         {
@@ -133,6 +134,26 @@ public static class TrendFit
         }
 
         return new OnsetEstimate(route, root, se, ci, n, trend, diags);
+    }
+
+    /// <summary>
+    /// Replaces each run's standard error by a smooth function of μ (least squares of log σᵢ on a polynomial in μ,
+    /// degree ≤ 2). Each σᵢ comes from a handful of revolutions and scatters by tens of percent; weighting by the raw
+    /// values lets a few runs with luckily small σᵢ dominate, which the common Birge scale cannot repair and which
+    /// makes intervals too narrow. The smooth keeps the systematic trend of σ with μ (common practice, no source).
+    /// </summary>
+    internal static IReadOnlyList<TrendPoint> SmoothErrors(IReadOnlyList<TrendPoint> points)
+    {
+        var n = points.Count;
+        var degree = Math.Min(2, n - 3);
+        if (degree < 1)
+        {
+            return points;
+        }
+
+        var logs = points.Select(p => new TrendPoint(p.Mu, Math.Log(p.StandardError), 1.0)).ToList();
+        var fit = Fit(logs, degree);
+        return points.Select(p => p with { StandardError = Math.Exp(fit.Evaluate(p.Mu)) }).ToList();
     }
 
     /// <summary>The zero of the trend nearest the point with the smallest |y|.</summary>

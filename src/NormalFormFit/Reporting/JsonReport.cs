@@ -17,7 +17,7 @@ public static class JsonReport
     public static void Write(AnalysisReport report, Stream stream, string? toolVersion = null)
     {
         ArgumentNullException.ThrowIfNull(report);
-        using var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true });
+        using var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
         w.WriteStartObject();
         w.WriteString("schema", SchemaVersion);
         if (toolVersion is not null)

@@ -96,7 +96,7 @@ public static class TextReport
     {
         if (!e.IsAvailable)
         {
-            var why = e.Diagnostics.FirstOrDefault()?.Message ?? "not available";
+            var why = e.Diagnostics.Count > 0 ? e.Diagnostics[0].Message : "not available";
             return label + "not available: " + why;
         }
 

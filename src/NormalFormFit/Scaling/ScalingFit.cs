@@ -9,7 +9,7 @@ namespace NormalFormFit.Scaling;
 /// <param name="StandardError">Standard error of the mean period.</param>
 public readonly record struct PeriodPoint(double Mu, double Period, double StandardError);
 
-/// <summary>The fitted scaling law T = C·|μ − μc|^(−β)·exp(κ|μ − μc|) and the verdict on the kind of onset.</summary>
+/// <summary>The fitted scaling law T = C·|μ − μc|^(−β)·exp(κ₁d + κ₂d²), d = |μ − μc| and the verdict on the kind of onset.</summary>
 /// <param name="Exponent">β with its standard error.</param>
 /// <param name="Ci95">95% interval of β (Student-t, n − p degrees of freedom).</param>
 /// <param name="Onset">μc of this fit with its standard error.</param>
@@ -20,17 +20,20 @@ public readonly record struct PeriodPoint(double Mu, double Period, double Stand
 public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate Onset, double Correction, int Runs, string Verdict, string Evidence);
 
 /// <summary>
-/// Fits the period scaling T = C(μ−μc)^(−β), optionally with the first correction factor exp(κ(μ−μc)), on log T.
+/// Fits the period scaling T = C(μ−μc)^(−β), with up to two correction terms exp(κ₁d + κ₂d²), on log T.
 /// </summary>
 /// <remarks>
 /// A saddle-node on the circle gives β = ½ (T ≈ π/√(ab) with a ∝ μ − μc; Strogatz, Nonlinear Dynamics and
 /// Chaos, 2nd ed., §4.3). Weighted least squares of log T with σ = se(T)/T; μc profiled (grid, then golden
-/// section), c, β, κ linear given μc; κ kept when AICc prefers it. Covariance from the Jacobian of all
+/// section), c, β, κ linear given μc; the number of κ terms (0–2, keeping two residual degrees of freedom) chosen by AICc. Covariance from the Jacobian of all
 /// parameters, scaled by the reduced χ²; the interval of β uses Student-t with n − p degrees of freedom.
 /// Minimum: four runs (five with κ).
 /// </remarks>
 public static class ScalingFit
 {
+    /// <summary>Half-width of the band around β = ½ within which an exponent counts as the square-root law.</summary>
+    public const double EquivalenceMargin = 0.05;
+
     /// <summary>Fits the scaling law; null when fewer than four usable runs.</summary>
     public static ScalingResult? Fit(IReadOnlyList<PeriodPoint> runs)
     {
@@ -45,11 +48,11 @@ public static class ScalingFit
         var side = pts[^1].Period < pts[0].Period ? 1 : -1;
         var edge = side > 0 ? pts[0].Mu : pts[^1].Mu;
         var span = pts[^1].Mu - pts[0].Mu;
-        var best = FitWith(pts, side, edge, span, correction: false);
-        if (pts.Length >= 6)
+        var best = FitWith(pts, side, edge, span, corrections: 0);
+        for (var k = 1; k <= 2 && pts.Length - (3 + k) >= 2; k++)
         {
-            var withK = FitWith(pts, side, edge, span, correction: true);
-            if (withK is not null && best is not null && withK.Value.Aicc < best.Value.Aicc)
+            var withK = FitWith(pts, side, edge, span, corrections: k);
+            if (withK is not null && (best is null || withK.Value.Aicc < best.Value.Aicc))
             {
                 best = withK;
             }
@@ -77,16 +80,18 @@ public static class ScalingFit
             return ("undetermined", text + "; the interval is too wide to tell the kind of onset: add runs closer to onset");
         }
 
-        return ci.Contains(0.5)
+        // β = ½ is supported when the interval reaches ½ ± EquivalenceMargin: the margin absorbs the higher-order
+        // terms of the law that a few runs cannot resolve (common practice, no source).
+        return ci.Low <= 0.5 + EquivalenceMargin && ci.High >= 0.5 - EquivalenceMargin
             ? ("saddle-node-on-circle", text + "; consistent with β = ½ of a saddle-node on the circle")
             : ("undetermined", text + "; excludes β = ½: not the square-root law of a saddle-node on the circle, or runs too far from onset");
     }
 
     private readonly record struct Solution(double MuC, double Beta, double BetaSe, double MuCSe, double Kappa, int Dof, double Aicc);
 
-    private static Solution? FitWith(PeriodPoint[] pts, int side, double edge, double span, bool correction)
+    private static Solution? FitWith(PeriodPoint[] pts, int side, double edge, double span, int corrections)
     {
-        double Chi2(double muc) => Inner(pts, side, muc, correction, out _);
+        double Chi2(double muc) => Inner(pts, side, muc, corrections, out _);
 
         // Grid over the distance of μc beyond the nearest run, then golden section.
         const int grid = 80;
@@ -139,8 +144,8 @@ public static class ScalingFit
         }
 
         var muc = edge - (side * Math.Exp(0.5 * (lo + hi)));
-        var chi2 = Inner(pts, side, muc, correction, out var coef);
-        var p = correction ? 4 : 3;
+        var chi2 = Inner(pts, side, muc, corrections, out var coef);
+        var p = 3 + corrections;
         var n = pts.Length;
         var dof = n - p;
         if (dof < 1)
@@ -157,15 +162,21 @@ public static class ScalingFit
             double Model(double mc)
             {
                 var d = side * (pts[i].Mu - mc);
-                return coef[0] - (coef[1] * Math.Log(d)) + (correction ? coef[2] * d : 0);
+                var y = coef[0] - (coef[1] * Math.Log(d));
+                for (var k = 1; k <= corrections; k++)
+                {
+                    y += coef[1 + k] * Math.Pow(d, k);
+                }
+
+                return y;
             }
 
             var dd = side * (pts[i].Mu - muc);
             j[i, 0] = 1 / sigma;
             j[i, 1] = -Math.Log(dd) / sigma;
-            if (correction)
+            for (var k = 1; k <= corrections; k++)
             {
-                j[i, 2] = dd / sigma;
+                j[i, 1 + k] = Math.Pow(dd, k) / sigma;
             }
 
             j[i, p - 1] = (Model(muc + h) - Model(muc - h)) / (2 * h) / sigma;
@@ -177,13 +188,13 @@ public static class ScalingFit
         var aicc = n - k2 - 1 > 0
             ? (n * Math.Log(Math.Max(chi2, 1e-300) / n)) + (2 * k2) + (2.0 * k2 * (k2 + 1) / (n - k2 - 1))
             : double.PositiveInfinity;
-        return new Solution(muc, coef[1], Math.Sqrt(cov[1, 1]), Math.Sqrt(cov[p - 1, p - 1]), correction ? coef[2] : 0, dof, aicc);
+        return new Solution(muc, coef[1], Math.Sqrt(cov[1, 1]), Math.Sqrt(cov[p - 1, p - 1]), corrections > 0 ? coef[2] : 0, dof, aicc);
     }
 
     // Weighted linear least squares of log T on [1, −log d, (d)] for a given μc; returns χ².
-    private static double Inner(PeriodPoint[] pts, int side, double muc, bool correction, out double[] coef)
+    private static double Inner(PeriodPoint[] pts, int side, double muc, int corrections, out double[] coef)
     {
-        var p = correction ? 3 : 2;
+        var p = 2 + corrections;
         var n = pts.Length;
         var x = Matrix<double>.Build.Dense(n, p);
         var y = Vector<double>.Build.Dense(n);
@@ -199,9 +210,9 @@ public static class ScalingFit
             var w = pts[i].Period / pts[i].StandardError;
             x[i, 0] = w;
             x[i, 1] = -Math.Log(d) * w;
-            if (correction)
+            for (var k = 1; k <= corrections; k++)
             {
-                x[i, 2] = d * w;
+                x[i, 1 + k] = Math.Pow(d, k) * w;
             }
 
             y[i] = Math.Log(pts[i].Period) * w;
