@@ -3,10 +3,10 @@ namespace NormalFormFit.Simulation;
 /// <summary>Synthetic phase recordings from a phase model, with optional dynamic and measurement noise.</summary>
 public static class Simulator
 {
-    private const double MaxPhaseStep = 0.01;   // rad moved per integration step (h·max|f|)
-    private const double MaxStiffnessStep = 0.01; // h·max|∂f/∂θ|
-    private const double MaxNoiseKick = 0.1;    // rad, SD of one Euler–Maruyama kick √(2Dh)
-    private const int MinSubsteps = 4;
+    private const double Rk4MaxStep = 0.02;   // h·max(|f|, |∂f/∂θ|) without dynamic noise (RK4, fourth order)
+    private const double EulerMaxStep = 0.01; // the same with dynamic noise (Euler–Maruyama, first order in the drift)
+    private const double MaxNoiseKick = 0.1;  // rad, SD of one Euler–Maruyama kick √(2Dh)
+    private const int MinSubsteps = 2;
     private const int SpeedGridPoints = 1024;
 
     /// <summary>Simulates one run of <paramref name="model"/> at <c>options.Mu</c>.</summary>
@@ -34,7 +34,10 @@ public static class Simulator
         var mu = options.Mu;
         var dt = options.SamplingInterval;
         var dynamics = GaussianSource.Create(options.Seed, stream: 0);
-        var theta0 = options.InitialPhase ?? (Math.PI - (2.0 * Math.PI * dynamics.Uniform.NextDouble()));
+
+        // Drawn even when the initial phase is given, so that the resolved options reproduce the noise as well.
+        var drawnPhase = Math.PI - (2.0 * Math.PI * dynamics.Uniform.NextDouble());
+        var theta0 = options.InitialPhase ?? drawnPhase;
         var maxDuration = options.MaxDuration ?? DefaultMaxDuration(model, options);
         var lastIndex = (long)Math.Floor((maxDuration / dt) + 1e-9);
         if (lastIndex + 1 > SimulationOptions.MaxSamples)
@@ -74,9 +77,9 @@ public static class Simulator
     }
 
     /// <summary>
-    /// The substep count used when <see cref="SimulationOptions.Substeps"/> is null: the smallest count, at least 4,
-    /// with h·max|f| ≤ 0.01, h·max|∂f/∂θ| ≤ 0.01 and √(2Dh) ≤ 0.1, where h = SamplingInterval / substeps and the
-    /// maxima are taken over a grid of 1024 phases.
+    /// The substep count used when <see cref="SimulationOptions.Substeps"/> is null: the smallest count, at least 2,
+    /// with h·max(|f|, |∂f/∂θ|) ≤ 0.02 for RK4 (D = 0); with D &gt; 0, h·max(|f|, |∂f/∂θ|) ≤ 0.01 and √(2Dh) ≤ 0.1 for
+    /// Euler–Maruyama. h = SamplingInterval / substeps; the maxima are taken over a grid of 1024 phases.
     /// </summary>
     /// <param name="model">The model.</param>
     /// <param name="options">The options (μ, sampling interval, dynamic noise).</param>
@@ -87,8 +90,9 @@ public static class Simulator
         ArgumentNullException.ThrowIfNull(options);
         var (maxSpeed, maxSlope) = SpeedBounds(model, options.Mu);
         var dt = options.SamplingInterval;
-        var needed = Math.Max(dt * maxSpeed / MaxPhaseStep, dt * maxSlope / MaxStiffnessStep);
-        if (options.DynamicNoise > 0.0)
+        var stochastic = options.DynamicNoise > 0.0;
+        var needed = dt * Math.Max(maxSpeed, maxSlope) / (stochastic ? EulerMaxStep : Rk4MaxStep);
+        if (stochastic)
         {
             needed = Math.Max(needed, 2.0 * options.DynamicNoise * dt / (MaxNoiseKick * MaxNoiseKick));
         }
