@@ -14,15 +14,28 @@ namespace NormalFormFit.Smoothing;
 public static class CubicSmoothingSpline
 {
     // GCV search over log₁₀ of the rescaled λ. At unit mean spacing the spline's equivalent kernel has
-    // a half-width of about λ^(1/4) samples, so 10⁻⁴ is interpolation and n⁴ a straight line
-    // (common practice, no source). Scan by whole decades, then refine by Brent's method.
-    private const double LowestLog10Lambda = -4.0;
-    private const double ScanStep = 1.0;
-    private const double Log10Tolerance = 2e-4;
+    // a half-width of about λ^(1/4) samples (Silverman 1984, "Spline smoothing: the equivalent variable
+    // kernel method"), so 10⁻⁴ is interpolation and n⁴ a straight line. Scan every ScanStep decades
+    // (a factor 3 in kernel width), then refine by Brent's method between the best point's neighbours.
+    private const double LowestLog10Lambda = -3.0;
+    private const double ScanStep = 2.0;
 
-    // A fit is within 1e-3 of a straight line once tr A < 2.001: further λ cannot change the GCV score
-    // noticeably, so the scan stops there.
+    // λ is found to 0.23 %: far below the sampling variability of the GCV choice itself, and the fit
+    // changes by less than 1e-3 of the residual scale (GCV is flat at its minimum).
+    private const double Log10Tolerance = 1e-3;
+
+    // Once two scan points in a row score above this multiple of the best, the signal has been smoothed
+    // away and the score only climbs towards the straight-line residual variance (common practice, no
+    // source): the scan stops there instead of running to the largest λ.
+    private const double ClimbFactor = 2.0;
+
+    // A fit within 1e-3 of a straight line (tr A < 2.001) cannot change the score noticeably at larger λ.
     private const double StraightLineTrace = 2.001;
+
+    // tr(M⁻¹R) + λ·tr(M⁻¹QᵀW⁻¹Q) = n − 2 exactly; its rounding error measures how far the band of M⁻¹
+    // can be trusted. Past 1e-4·tr A (λ ≳ 10¹³ at unit spacing: kernel half-width ≈ 2000 samples) the
+    // scan stops; larger λ would need a regression spline with fewer knots (Eilers & Marx 1996).
+    private const double TraceIdentityTolerance = 1e-4;
 
     /// <summary>Fits the smoothing spline.</summary>
     /// <param name="t">Sample times, strictly increasing, finite; at least 3.</param>
@@ -45,6 +58,12 @@ public static class CubicSmoothingSpline
         if (options?.Lambda is double lambda)
         {
             point = system.Evaluate(system.FromCallerLambda(lambda), residuals);
+            if (!point.IsPositiveDefinite)
+            {
+                throw new ArgumentException(
+                    $"Lambda = {lambda} is too large for these data in double precision (the system is no longer positive definite).",
+                    nameof(options));
+            }
         }
         else
         {
@@ -55,21 +74,31 @@ public static class CubicSmoothingSpline
         return Assemble(t, y, system, point, residuals);
     }
 
-    private static double SearchLog10Lambda(ReinschSystem system, int n)
+    internal static double SearchLog10Lambda(ReinschSystem system, int n)
     {
-        double Score(double log10Lambda) => system.Evaluate(Math.Pow(10.0, log10Lambda), default).Score;
-
-        // Coarse scan: keep the best decade and its neighbours.
-        double bestX = LowestLog10Lambda, bestScore = double.PositiveInfinity;
+        // Coarse scan: keep the best point and its neighbours.
+        double bestX = double.NaN, bestScore = double.PositiveInfinity, lastValid = double.NaN;
+        int climbing = 0;
         double highest = (4.0 * Math.Log10(n)) + 2.0;
         for (double x = LowestLog10Lambda; x <= highest; x += ScanStep)
         {
             var p = system.Evaluate(Math.Pow(10.0, x), default);
-            double s = p.Score;
-            if (s < bestScore)
+            if (!IsReliable(p, n))
             {
-                bestScore = s;
+                break;
+            }
+
+            lastValid = x;
+            if (p.Score < bestScore)
+            {
+                bestScore = p.Score;
                 bestX = x;
+            }
+
+            climbing = p.Score > ClimbFactor * bestScore ? climbing + 1 : 0;
+            if (climbing == 2)
+            {
+                break;
             }
 
             if (p.TraceA < StraightLineTrace)
@@ -78,8 +107,26 @@ public static class CubicSmoothingSpline
             }
         }
 
-        return Brent.Minimize(Score, bestX - ScanStep, bestX + ScanStep, bestX, bestScore, Log10Tolerance);
+        if (double.IsNaN(bestX))
+        {
+            throw new InvalidOperationException("No λ gave a usable smoothing system; the data cannot be smoothed.");
+        }
+
+        double Score(double x)
+        {
+            var p = system.Evaluate(Math.Pow(10.0, x), default);
+            return IsReliable(p, n) ? p.Score : double.MaxValue;
+        }
+
+        double upper = Math.Min(bestX + ScanStep, lastValid);
+        return upper <= bestX
+            ? bestX
+            : Brent.Minimize(Score, bestX - ScanStep, upper, bestX, bestScore, Log10Tolerance);
     }
+
+    private static bool IsReliable(GcvPoint p, int n) =>
+        p.IsPositiveDefinite
+        && Math.Abs(2.0 + p.TraceRMinv + p.TraceIMinusA - n) <= TraceIdentityTolerance * p.TraceA;
 
     private static SmoothingSplineFit Assemble(
         ReadOnlySpan<double> t, ReadOnlySpan<double> y, ReinschSystem system, GcvPoint point, double[] residuals)

@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace NormalFormFit.Smoothing;
 
 /// <summary>
@@ -100,6 +102,9 @@ internal sealed class ReinschSystem
 
     public int Count => n;
 
+    /// <summary>How many λ have been evaluated (the cost of a search).</summary>
+    public int Evaluations { get; private set; }
+
     /// <summary>γ (second derivatives at interior knots, rescaled time) of the last <see cref="Evaluate"/>.</summary>
     public ReadOnlySpan<double> Gamma => gamma;
 
@@ -115,14 +120,18 @@ internal sealed class ReinschSystem
     /// </summary>
     public GcvPoint Evaluate(double lambda, Span<double> residuals)
     {
-        ForwardSweep(lambda);
-        return BackwardSweep(lambda, residuals);
+        Evaluations++;
+        return ForwardSweep(lambda)
+            ? BackwardSweep(lambda, residuals)
+            : new GcvPoint(lambda, n, double.NaN, double.NaN, double.NaN, double.NaN) { IsPositiveDefinite = false };
     }
 
     private double Wi(int k) => inverseWeights is null ? 1.0 : inverseWeights[k];
 
     // M = R + λT assembled on the fly, M = L·D·Lᵀ, forward substitution L·z = Qᵀy with z stored in gamma.
-    private void ForwardSweep(double lambda)
+    // False when a pivot is not positive: rounding has destroyed positive definiteness (λ far too large).
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)] // hot loop: skip the unoptimised first tier
+    private bool ForwardSweep(double lambda)
     {
         double l1Prev = 0.0; // L(i − 1, i − 2)
         double zPrev2 = 0.0, zPrev1 = 0.0;
@@ -137,8 +146,7 @@ internal sealed class ReinschSystem
             double di = r0[i] + (lambda * t0[i]) - (u1 * li1) - (u2 * li2);
             if (!(di > 0.0))
             {
-                throw new InvalidOperationException(
-                    $"Smoothing system lost positive definiteness at row {i} (λ = {lambda}).");
+                return false;
             }
 
             double z = qty[i] - (li1 * zPrev1) - (li2 * zPrev2);
@@ -151,9 +159,11 @@ internal sealed class ReinschSystem
             l1Prev = li1;
         }
 
+        return true;
     }
 
     // Back substitution, band of M⁻¹ in a sliding window, tr(M⁻¹R), tr(M⁻¹T), residuals.
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private GcvPoint BackwardSweep(double lambda, Span<double> residuals)
     {
         var ih = inverseSpacing;
@@ -213,6 +223,9 @@ internal sealed class ReinschSystem
 internal readonly record struct GcvPoint(
     double ScaledLambda, int Count, double Rss, double WeightedRss, double TraceRMinv, double TraceIMinusA)
 {
+    /// <summary>False when the factorisation broke down; the other members are then NaN.</summary>
+    public bool IsPositiveDefinite { get; init; } = true;
+
     /// <summary>
     /// tr A. Both traces are sums of the same band; each is accurate when it is small, so the smaller one
     /// is used and the other follows from tr A + tr(I − A) = n, avoiding cancellation at either end.

@@ -60,19 +60,19 @@ public class CubicSmoothingSplineScipyTests
         var fit = CubicSmoothingSpline.Fit(c.X, c.Y, SmoothingOptions.Default, c.W);
 
         // Both searches stop at a tolerance in λ: SciPy's bounded Brent at absolute 1e-5 on λ ≈ 0.5–1.5
-        // (≤ 2e-5 relative), ours at 2e-4 in log₁₀ λ (≤ 4.6e-4 relative). GCV is flat at its minimum, so
-        // neither can be expected closer than that; 1e-3 relative covers both.
-        Assert.Equal(c.Lambda, fit.Lambda, c.Lambda * 1e-3);
+        // (≤ 2e-5 relative), ours at 1e-3 in log₁₀ λ (≤ 2.3e-3 relative). GCV is flat at its minimum, so
+        // neither can be expected closer than that; 3e-3 relative covers both.
+        Assert.Equal(c.Lambda, fit.Lambda, c.Lambda * 3e-3);
 
         // Ours must be at least as good a minimum of SciPy's criterion as SciPy's own choice, up to the
-        // flatness: GCV at a λ 1e-3 off the minimum differs by ~κ·1e-6 relative, κ ≲ 1.
+        // flatness: GCV at a λ 3e-3 off the minimum differs by ~κ·1e-5 relative, κ ≲ 1.
         var atScipy = CubicSmoothingSpline.Fit(c.X, c.Y, new SmoothingOptions { Lambda = c.Lambda }, c.W);
         Assert.Equal(c.Gcv, atScipy.GcvScore, c.Gcv * FixedLambdaTolerance);
-        Assert.True(fit.GcvScore <= atScipy.GcvScore * (1 + 1e-6), $"GCV {fit.GcvScore} > SciPy's {atScipy.GcvScore}");
+        Assert.True(fit.GcvScore <= atScipy.GcvScore * (1 + 1e-5), $"GCV {fit.GcvScore} > SciPy's {atScipy.GcvScore}");
 
         // Fitted values at the two choices: f changes with λ at a rate ∂f/∂ln λ of the order of the
-        // residuals (noise 0.1–0.3 on data of scale 1–2), so 1e-3 in λ moves f by at most ~3e-4.
-        AssertClose(c.Value, fit.Values, 3e-4, "f(x) at the GCV choice");
+        // residuals (noise 0.1–0.3 on data of scale 1–2), so 3e-3 in λ moves f by at most ~1e-3.
+        AssertClose(c.Value, fit.Values, 1e-3, "f(x) at the GCV choice");
     }
 
     private static void AssertClose(double[] expected, ReadOnlySpan<double> actual, double relative, string what)
