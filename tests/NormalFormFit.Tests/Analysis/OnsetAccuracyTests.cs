@@ -31,3 +31,19 @@ public class OnsetAccuracyTests(ITestOutputHelper output)
         Assert.True(t.Ci95.Contains(1.0), $"period interval [{t.Ci95.Low}, {t.Ci95.High}] misses 1");
     }
 }
+
+public class ThetaNeuronAccuracyTests
+{
+    [Fact]
+    public void Onset_FromThetaNeuronRuns_BothRoutesWithinTwoThousandthsOfZero()
+    {
+        // Theta neuron θ̇ = 1 − cos θ + (1 + cos θ)μ: onset μc = 0, period π/√μ (Ermentrout & Kopell 1986); a = 2μ.
+        var template = new SimulationOptions { Revolutions = 6, SamplingInterval = 0.01, MeasurementNoise = 0.01, Seed = 12 };
+        var report = SimulatedSet.Analyze(BuiltInModels.ThetaNeuron, [0.005, 0.01, 0.02, 0.04, 0.07, 0.1, 0.15, 0.2], template);
+        Assert.InRange(report.FromBottleneck.Value, -0.002, 0.002);
+        Assert.InRange(report.FromPeriod.Value, -0.002, 0.002);
+        Assert.True(report.FromBottleneck.Ci95.Contains(0.0));
+        Assert.True(report.FromPeriod.Ci95.Contains(0.0));
+        Assert.Equal("saddle-node-on-circle", report.Scaling!.Verdict);
+    }
+}
