@@ -9,7 +9,7 @@ namespace NormalFormFit.Tests.Analysis;
 /// <summary>
 /// Prints the time of one run's analysis (spline + field + bottleneck + periods) at 10⁵ and 10⁶ samples.
 /// It never asserts a wall-clock time (the machine is shared); it asserts only that the answer stays right.
-/// Run: dotnet test -c Release --filter "Category=Speed" --logger "console;verbosity=detailed".
+/// Run: dotnet test NormalFormFit.sln -c Release --settings tests/NormalFormFit.Tests/speed.runsettings --logger "console;verbosity=detailed".
 /// </summary>
 [Trait("Category", "Speed")]
 public class RunSpeedTests(ITestOutputHelper output)
