@@ -89,7 +89,9 @@ public static class OnsetKind
                     ? "; the square-root law fits best but the minimum speed does not confirm a bottleneck closing"
                     : "; the square-root law fits best but β excludes ½: runs may be too far from onset"));
             case "homoclinic" when !betaHalf:
-                return (OnsetKinds.Homoclinic, text + "; the period grows like a logarithm, as at a homoclinic onset, not like the square root of a saddle-node");
+                var h = weights.Fits.First(f => f.Law == "homoclinic");
+                return (OnsetKinds.Homoclinic, text + string.Create(Inv,
+                    $"; the period grows like a logarithm, as at a homoclinic onset, not like the square root of a saddle-node; the logarithmic law puts the onset at μ = {h.Onset:G6}"));
             case "homoclinic":
                 return (OnsetKinds.Undetermined, text + "; the logarithmic law fits best but β is still consistent with ½");
             case "finite-period" when !speed.ReachesZero:
