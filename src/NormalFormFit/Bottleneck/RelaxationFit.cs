@@ -36,7 +36,7 @@ public static class Relaxation
     /// Fits θ = θ∞ + A e^(−κ t) to the raw phase on the tail where it stays within δ of its final value, for
     /// δ = 1, ½, ¼, … rad while δ exceeds ten times the measurement noise; chooses the widest δ whose κ agrees with
     /// the next narrower one within two combined standard errors (outside the linear regime the decay is not a single
-    /// exponential). Given κ, θ∞ and A are linear (weighted least squares); κ by golden section on log κ; standard error of κ from
+    /// exponential) and extrapolates that pair to a zero window (Richardson). Given κ, θ∞ and A are linear (weighted least squares); κ by golden section on log κ; standard error of κ from
     /// the Jacobian with the residual variance (white measurement noise). O(n) per δ. Null when the run is
     /// still moving or has not settled long enough to show the decay.
     /// </summary>
@@ -80,13 +80,19 @@ public static class Relaxation
             return null;
         }
 
+        // The quadratic term of the normal form about the node, θ̇ = −κe + be², biases κ by a fraction proportional to
+        // the window: Richardson extrapolation of the pair (δ, δ/2), 2κ(δ/2) − κ(δ), removes it to first order; its
+        // standard error treats the two fits as independent (conservative: they share samples).
+        bool Agree(int i, double z) => i + 1 >= fits.Count || Math.Abs(fits[i].Rate.Value - fits[i + 1].Rate.Value)
+            <= z * Math.Sqrt(Sq(fits[i].Rate.StandardError) + Sq(fits[i + 1].Rate.StandardError));
         for (var i = 0; i + 1 < fits.Count; i++)
         {
-            var d = Math.Abs(fits[i].Rate.Value - fits[i + 1].Rate.Value);
-            var s = Math.Sqrt(Sq(fits[i].Rate.StandardError) + Sq(fits[i + 1].Rate.StandardError));
-            if (d <= 2 * s)
+            // Two successive halvings must agree, so that one lucky agreement outside the linear regime is not enough.
+            if ((Agree(i, 2) && Agree(i + 1, 2)) || i + 2 == fits.Count)
             {
-                return fits[i];
+                var k = (2 * fits[i + 1].Rate.Value) - fits[i].Rate.Value;
+                var se = Math.Sqrt((4 * Sq(fits[i + 1].Rate.StandardError)) + Sq(fits[i].Rate.StandardError));
+                return k > 0 ? fits[i + 1] with { Rate = new Estimate(k, se) } : fits[i + 1];
             }
         }
 

@@ -2,6 +2,7 @@ using System.Text.Json;
 using NormalFormFit.Analysis;
 using NormalFormFit.Bottleneck;
 using NormalFormFit.Simulation;
+using NormalFormFit.Tests.Analysis;
 using Xunit.Abstractions;
 
 namespace NormalFormFit.Tests.Bottleneck;

@@ -16,6 +16,7 @@ public class NextMeasurementTests(ITestOutputHelper output)
     {
         var shrunk = 0;
         var beatsFarChoice = 0;
+        var covered = 0;
         const int seeds = 4;
         for (var seed = 1; seed <= seeds; seed++)
         {
@@ -33,8 +34,11 @@ public class NextMeasurementTests(ITestOutputHelper output)
             output.WriteLine($"seed {seed}: suggest μ = {plan.Param:G5}, width {w0:G3} → {w1:G3} (expected {plan.ExpectedCi95.Width:G3}); at μ = 1.3: {w2:G3}");
             shrunk += w1 < w0 ? 1 : 0;
             beatsFarChoice += w1 < w2 ? 1 : 0;
-            Assert.True(after.FromBottleneck.Ci95.Contains(1.0));
+            covered += after.FromBottleneck.Ci95.Contains(1.0) ? 1 : 0;
         }
+
+        // A 95% interval may miss in one of four seeds (P ≈ 0.19); two misses (P ≈ 0.014) would mean the new runs spoil it.
+        Assert.True(covered >= seeds - 1);
 
         // Every seed must shrink; the planned runs beat runs at the far end in at least three of four seeds.
         Assert.Equal(seeds, shrunk);
