@@ -98,8 +98,14 @@ public static class RunAnalyzer
         {
             flags.Add(RunFlags.NotTurning);
             diags.Add(Info(file, "not-turning", string.Create(CultureInfo.InvariantCulture,
-                $"the phase advances only {turns:F2} turns: the run does not turn (below onset?) and is left out of the onset fits")));
-            return new RunResult(file, param, label, n, duration, turns, trajectory.Direction, smoothing, null, null, null, flags, diags);
+                $"the phase advances only {turns:F2} turns: the run does not turn (below onset?); no period is measured")));
+            var raw = idx.Select(i => trajectory.Phase[i]).ToArray();
+            var relaxation = Relaxation.Fit(tt, raw, ph, smoothing.NoiseSd);
+            diags.Add(relaxation is null
+                ? Info(file, "no-relaxation", "the run does not settle visibly inside the record (or starts at rest): no relaxation rate")
+                : Info(file, "relaxation", string.Create(CultureInfo.InvariantCulture,
+                    $"the phase settles at {relaxation.RestPhase:F3} rad with relaxation rate κ = {relaxation.Rate.Value:G4} ± {relaxation.Rate.StandardError:G2}")));
+            return new RunResult(file, param, label, n, duration, turns, trajectory.Direction, smoothing, null, null, null, flags, diags) { Relaxation = relaxation };
         }
 
         // Weights never depend on the noisy θ̇ itself (a weight ∝ θ̇ would bias every mean upward by var/mean):
@@ -182,7 +188,27 @@ public static class RunAnalyzer
             }
         }
 
-        return new RunResult(file, param, label, n, duration, turns, trajectory.Direction, smoothing, field, bottleneck, summary, flags, diags);
+        var rawPhase = idx.Select(i => trajectory.Phase[i]).ToArray();
+        var noise = PhaseDiffusion.Estimate(tt, rawPhase, segs, field, bottleneck);
+        if (noise is { NoiseDominated: true })
+        {
+            flags.Add(RunFlags.NoiseDominated);
+            diags.Add(Warn(file, "noise-dominated", string.Create(CultureInfo.InvariantCulture,
+                $"phase diffusion D = {noise.Diffusion.Value:G3} ± {noise.Diffusion.StandardError:G2} shortens the bottleneck passage to {noise.PassageRatio:P0} of π/√(ab): noise, not the bottleneck, sets the period; the run is left out of the onset fits")));
+        }
+
+        // Both behaviours in one run: it turned, then rested for the last quarter of the record.
+        var quarter = tt[^1] - (0.25 * (tt[^1] - tt[0]));
+        var lastStart = Array.FindIndex(tt, x => x >= quarter);
+        if (lastStart > 0 && double.IsFinite(measured) && 0.25 * (tt[^1] - tt[0]) > 2 * measured
+            && (ph[^1] - ph[lastStart]) / (2 * Math.PI) < 0.1)
+        {
+            flags.Add(RunFlags.MixedBehaviour);
+            diags.Add(Warn(file, "mixed-behaviour",
+                "the run turns and then comes to rest: both behaviours at one parameter value (bistability or drift of the parameter)"));
+        }
+
+        return new RunResult(file, param, label, n, duration, turns, trajectory.Direction, smoothing, field, bottleneck, summary, flags, diags) { Noise = noise };
     }
 
     private static int[] CompactSegments(Trajectory trajectory, bool[] used)

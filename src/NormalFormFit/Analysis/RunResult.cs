@@ -29,6 +29,15 @@ public static class RunFlags
 
     /// <summary>The window-halving check shows a quartic bias of a comparable to its error.</summary>
     public const string WindowBias = "window-bias";
+
+    /// <summary>Phase noise shortens the bottleneck passage by more than 10%: the run is left out of the onset fits.</summary>
+    public const string NoiseDominated = "noise-dominated";
+
+    /// <summary>The run turns, then comes to rest (or the reverse): both behaviours at one parameter value.</summary>
+    public const string MixedBehaviour = "mixed-behaviour";
+
+    /// <summary>The run rests at a parameter value where other runs turn (or the reverse): hysteresis or bistability.</summary>
+    public const string Bistable = "bistable";
 }
 
 /// <summary>Smoothing summary of a run.</summary>
@@ -75,4 +84,10 @@ public sealed record RunResult(
 {
     /// <summary>True when the run turned at least once.</summary>
     public bool IsTurning => !Flags.Contains(RunFlags.NotTurning);
+
+    /// <summary>Exponential settling at the stable point, for a run that does not turn (null otherwise or when not resolved).</summary>
+    public RelaxationFit? Relaxation { get; init; }
+
+    /// <summary>Phase-diffusion estimate and its effect on the bottleneck passage (null when the run is too short).</summary>
+    public NoiseEstimate? Noise { get; init; }
 }

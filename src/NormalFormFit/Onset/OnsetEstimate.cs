@@ -76,9 +76,37 @@ public sealed record OnsetEstimate(string Route, double Value, double StandardEr
     /// <summary>True when a finite value was obtained.</summary>
     public bool IsAvailable => double.IsFinite(Value);
 
+    /// <summary>
+    /// Whether the route's model applies to the kind of onset found: <c>applicable</c>, <c>unconfirmed</c> (the kind
+    /// could not be told), <c>unreliable</c> (homoclinic) or <c>not-applicable</c> (finite period). See <see cref="RouteStatus"/>.
+    /// </summary>
+    public string Status { get; init; } = RouteStatus.Applicable;
+
+    /// <summary>Why the route is not plainly applicable, in plain words (null when it is).</summary>
+    public string? StatusReason { get; init; }
+
+    /// <summary>Runs below onset (relaxation rates) that entered this route's trend.</summary>
+    public int RunsBelowOnset { get; init; }
+
     /// <summary>An estimate that could not be made, with the reason.</summary>
     public static OnsetEstimate NotAvailable(string route, int runs, Diagnostic why) =>
         new(route, double.NaN, double.NaN, new Interval(double.NaN, double.NaN), runs, null, [why]);
+}
+
+/// <summary>Stable names of <see cref="OnsetEstimate.Status"/>.</summary>
+public static class RouteStatus
+{
+    /// <summary>The kind of onset is a saddle-node on the circle: the route's model holds.</summary>
+    public const string Applicable = "applicable";
+
+    /// <summary>The kind of onset could not be told: the route assumes a saddle-node on the circle.</summary>
+    public const string Unconfirmed = "unconfirmed";
+
+    /// <summary>Homoclinic onset: the trend the route extrapolates is not the one its model predicts.</summary>
+    public const string Unreliable = "unreliable";
+
+    /// <summary>Finite-period onset: there is no bottleneck to close.</summary>
+    public const string NotApplicable = "not-applicable";
 }
 
 /// <summary>Agreement of two onset estimates: z = (μ₁ − μ₂)/√(σ₁² + σ₂²), consistent when |z| ≤ 2.</summary>

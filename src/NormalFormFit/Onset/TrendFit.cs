@@ -84,18 +84,22 @@ public static class TrendFit
     /// Estimates the root μc of the trend through <paramref name="points"/>; degree 1, or 2 when AICc prefers
     /// it (only with five points or more, so that two degrees of freedom remain).
     /// </summary>
-    public static OnsetEstimate Root(string route, IReadOnlyList<TrendPoint> points, bool allowCurvature = true)
+    /// <param name="route">Route name for messages.</param>
+    /// <param name="points">The runs' points; their standard errors are smoothed across μ.</param>
+    /// <param name="allowCurvature">Whether a quadratic trend may be chosen.</param>
+    /// <param name="extraPoints">Points of another kind (e.g. from runs below onset) added after the smoothing, with their own errors.</param>
+    public static OnsetEstimate Root(string route, IReadOnlyList<TrendPoint> points, bool allowCurvature = true, IReadOnlyList<TrendPoint>? extraPoints = null)
     {
         ArgumentNullException.ThrowIfNull(points);
         var diags = new List<Diagnostic>();
-        var n = points.Count;
-        if (n < 3)
+        if (points.Count < 3)
         {
-            return OnsetEstimate.NotAvailable(route, n, new Diagnostic(Severity.Warning, "too-few-runs",
-                $"the {route} route needs at least three usable runs, found {n}"));
+            return OnsetEstimate.NotAvailable(route, points.Count, new Diagnostic(Severity.Warning, "too-few-runs",
+                $"the {route} route needs at least three usable runs, found {points.Count}"));
         }
 
-        points = SmoothErrors(points);
+        points = extraPoints is { Count: > 0 } ? [.. SmoothErrors(points), .. extraPoints] : SmoothErrors(points);
+        var n = points.Count;
         var trend = Fit(points, 1);
         if (allowCurvature && n >= 5)
         {

@@ -54,7 +54,9 @@ public static class JsonReport
         w.WriteString("evidence", s?.Evidence ?? "fewer than four runs with timed periods");
         Number(w, "onset", s?.Onset.Value ?? double.NaN);
         Number(w, "runs", s?.Runs ?? 0);
+        ScalingEvidence(w, s);
         w.WriteEndObject();
+        NextMeasurements(w, report);
 
         w.WriteStartArray("runs");
         foreach (var r in report.Runs)
@@ -109,6 +111,13 @@ public static class JsonReport
         Number(w, "ci95_high", e.Ci95.High);
         w.WriteNumber("runs", e.Runs);
         Number(w, "trend_degree", e.Trend?.Degree ?? double.NaN);
+        w.WriteString("status", e.Status);
+        if (e.StatusReason is { } why)
+        {
+            w.WriteString("status_reason", why);
+        }
+
+        w.WriteNumber("runs_below_onset", e.RunsBelowOnset);
         w.WriteEndObject();
     }
 
@@ -160,6 +169,7 @@ public static class JsonReport
             w.WriteEndObject();
         }
 
+        RunEvidence(w, r);
         w.WriteStartArray("flags");
         foreach (var f in r.Flags)
         {
@@ -168,6 +178,101 @@ public static class JsonReport
 
         w.WriteEndArray();
         w.WriteEndObject();
+    }
+
+    // scaling.weights {saddle_node, homoclinic, finite_period}, scaling.laws[], scaling.minimum_speed.
+    private static void ScalingEvidence(Utf8JsonWriter w, Scaling.ScalingResult? s)
+    {
+        if (s?.Weights is { } wt)
+        {
+            w.WriteStartObject("weights");
+            Number(w, "saddle_node", wt.SaddleNode);
+            Number(w, "homoclinic", wt.Homoclinic);
+            Number(w, "finite_period", wt.FinitePeriod);
+            w.WriteEndObject();
+            w.WriteStartArray("laws");
+            foreach (var f in wt.Fits)
+            {
+                w.WriteStartObject();
+                w.WriteString("law", f.Law);
+                Number(w, "onset", f.Onset);
+                Number(w, "aic", f.Aic);
+                w.WriteBoolean("onset_at_search_limit", f.AtBoundary);
+                w.WriteEndObject();
+            }
+
+            w.WriteEndArray();
+        }
+        else
+        {
+            w.WriteNull("weights");
+        }
+
+        if (s?.MinimumSpeed is { } m)
+        {
+            w.WriteStartObject("minimum_speed");
+            w.WriteBoolean("reaches_zero", m.ReachesZero);
+            Number(w, "zero_at", m.Onset);
+            Number(w, "ci95_low", m.Ci95.Low);
+            Number(w, "ci95_high", m.Ci95.High);
+            w.WriteNumber("runs_with_bottleneck", m.RunsWithBottleneck);
+            w.WriteNumber("turning_runs", m.TurningRuns);
+            w.WriteEndObject();
+        }
+    }
+
+    private static void NextMeasurements(Utf8JsonWriter w, AnalysisReport report)
+    {
+        w.WriteStartArray("next_measurements");
+        foreach (var m in report.NextMeasurements)
+        {
+            w.WriteStartObject();
+            w.WriteString("route", m.Route);
+            Number(w, "param", m.Param);
+            w.WriteNumber("runs", m.Runs);
+            Number(w, "expected_period", m.ExpectedPeriod);
+            Number(w, "current_ci95_low", m.CurrentCi95.Low);
+            Number(w, "current_ci95_high", m.CurrentCi95.High);
+            Number(w, "expected_ci95_low", m.ExpectedCi95.Low);
+            Number(w, "expected_ci95_high", m.ExpectedCi95.High);
+            w.WriteEndObject();
+        }
+
+        w.WriteEndArray();
+    }
+
+    // runs[].relaxation and runs[].noise.
+    private static void RunEvidence(Utf8JsonWriter w, RunResult r)
+    {
+        if (r.Relaxation is { } x)
+        {
+            w.WriteStartObject("relaxation");
+            Number(w, "rate", x.Rate.Value);
+            Number(w, "rate_se", x.Rate.StandardError);
+            Number(w, "rest_phase", x.RestPhase);
+            Number(w, "window", x.Window);
+            w.WriteNumber("samples", x.Samples);
+            w.WriteEndObject();
+        }
+        else
+        {
+            w.WriteNull("relaxation");
+        }
+
+        if (r.Noise is { } nz)
+        {
+            w.WriteStartObject("noise");
+            Number(w, "diffusion", nz.Diffusion.Value);
+            Number(w, "diffusion_se", nz.Diffusion.StandardError);
+            Number(w, "measurement_sd", nz.MeasurementSd);
+            Number(w, "passage_ratio", nz.PassageRatio);
+            w.WriteBoolean("dominated", nz.NoiseDominated);
+            w.WriteEndObject();
+        }
+        else
+        {
+            w.WriteNull("noise");
+        }
     }
 
     private static void Number(Utf8JsonWriter w, string name, double v)

@@ -24,6 +24,7 @@ public static class TextReport
         sb.AppendLine("Onset (95% intervals)");
         sb.AppendLine(Onset("  from bottleneck (a → 0):  ", report.FromBottleneck, u));
         sb.AppendLine(Onset("  from period   (T⁻² → 0):  ", report.FromPeriod, u));
+        RouteCaveats(sb, report);
         var ag = report.Agreement;
         sb.AppendLine(double.IsFinite(ag.Z)
             ? string.Create(Inv, $"  agreement:                 z = {ag.Z:F2}, {(ag.Consistent ? "consistent" : "DISAGREE: " + ag.Reason)}")
@@ -39,8 +40,9 @@ public static class TextReport
             sb.AppendLine("  scaling:                   not available (needs four runs with timed periods)");
         }
 
+        NextRuns(sb, report, u);
         sb.AppendLine();
-        var header = new[] { "param", "θ*", "a", "±", "b", "±", "T meas", "±", "π/√(ab)", "∮dθ/θ̇", "revs", "flags" };
+        var header = new[] { "param", "θ*", "a", "±", "b", "±", "T meas", "±", "π/√(ab)", "∮dθ/θ̇", "revs", "κ rest", "D", "flags" };
         var rows = new List<string[]> { header };
         foreach (var r in report.Runs)
         {
@@ -59,6 +61,8 @@ public static class TextReport
                 p is null ? "–" : G(p.FromBottleneck.Value, 5),
                 p is null ? "–" : G(p.FromField.Value, 5),
                 (p?.Revolutions ?? 0).ToString(Inv),
+                r.Relaxation is { } x ? G(x.Rate.Value, 4) : "–",
+                r.Noise is { } nz ? G(nz.Diffusion.Value, 2) : "–",
                 r.Flags.Count == 0 ? "ok" : string.Join(",", r.Flags),
             ]);
         }
@@ -90,6 +94,42 @@ public static class TextReport
         sb.AppendLine();
         sb.AppendLine(Caution);
         return sb.ToString();
+    }
+
+    private static void RouteCaveats(StringBuilder sb, AnalysisReport report)
+    {
+        var a = report.FromBottleneck;
+        var t = report.FromPeriod;
+        if (a.Status != RouteStatus.Applicable && a.Status != RouteStatus.Unconfirmed)
+        {
+            sb.AppendLine($"  route status:              {a.Status}: {a.StatusReason}");
+        }
+        else if (a.Status == RouteStatus.Unconfirmed)
+        {
+            sb.AppendLine($"  route status:              unconfirmed: {a.StatusReason}");
+        }
+
+        if (t.RunsBelowOnset > 0)
+        {
+            sb.AppendLine(string.Create(Inv, $"  runs below onset:          {t.RunsBelowOnset} used by the period route (relaxation rate κ, −κ²/4π² continues T⁻²)"));
+        }
+    }
+
+    private static void NextRuns(StringBuilder sb, AnalysisReport report, string units)
+    {
+        if (report.NextMeasurements.Count == 0)
+        {
+            return;
+        }
+
+        sb.AppendLine();
+        sb.AppendLine("Next measurements (where new runs shrink the onset interval most)");
+        foreach (var m in report.NextMeasurements)
+        {
+            var period = double.IsFinite(m.ExpectedPeriod) ? string.Create(Inv, $", period about {m.ExpectedPeriod:G3}") : string.Empty;
+            sb.AppendLine(string.Create(Inv,
+                $"  {m.Route} route: {m.Runs} run(s) at μ = {m.Param:G6}{units}{period}: interval {B(m.CurrentCi95.Low)} to {B(m.CurrentCi95.High)} expected to become {B(m.ExpectedCi95.Low)} to {B(m.ExpectedCi95.High)}"));
+        }
     }
 
     private static string Onset(string label, OnsetEstimate e, string units)

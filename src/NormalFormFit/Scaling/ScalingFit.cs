@@ -17,7 +17,14 @@ public readonly record struct PeriodPoint(double Mu, double Period, double Stand
 /// <param name="Runs">Runs used.</param>
 /// <param name="Verdict">One of <c>saddle-node-on-circle</c>, <c>homoclinic</c>, <c>finite-period</c>, <c>undetermined</c>.</param>
 /// <param name="Evidence">Plain-words evidence for the verdict.</param>
-public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate Onset, double Correction, int Runs, string Verdict, string Evidence);
+public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate Onset, double Correction, int Runs, string Verdict, string Evidence)
+{
+    /// <summary>Akaike weights of the three period laws fitted to the same runs (null when they could not be fitted).</summary>
+    public PeriodLawWeights? Weights { get; init; }
+
+    /// <summary>Whether the minimum speed a extrapolates to zero (null until the runs are combined).</summary>
+    public MinimumSpeedTrend? MinimumSpeed { get; init; }
+}
 
 /// <summary>
 /// Fits the period scaling T = C(μ−μc)^(−β), with up to two correction terms exp(κ₁d + κ₂d²), on log T.
