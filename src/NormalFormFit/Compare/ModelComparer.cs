@@ -31,13 +31,13 @@ public static class CompareFailures
 /// Jacobian by forward-mode differentiation of the expression.</para>
 /// <para><b>Errors.</b> Bins of one run are correlated (the spline couples neighbours; their SEs come from a bootstrap
 /// over revolutions, bin by bin). The lag correlations ρ_k of the standardised residuals are pooled over runs and
-/// truncated where they fall below noise. Parameter covariance: sandwich A⁻¹BA⁻¹ with A = JᵀJ and B = Jᵀ Σ J, Σ
+/// truncated where they fall below noise (from the residuals of the free per-run fit). Parameter covariance: sandwich A⁻¹BA⁻¹ with A = JᵀJ and B = Jᵀ Σ J, Σ
 /// block-circulant per run with Bartlett-tapered ρ_k (Newey &amp; West 1987), scaled by Q/(N − k).</para>
-/// <para><b>Verdict.</b> Q = Σr². For a correct model, r has mean 0 and variance 1 and correlation ρ_k within a run,
-/// so E[Q] = N − k and Var[Q] ≈ 2 Σ_runs m(1 + 2Σρ_k²) (+2 per period point), the variance of a Gaussian quadratic
-/// form (Box 1954). Q is referred to the scaled χ² with the same mean and variance, g·χ²(h) (Satterthwaite 1946;
-/// Welch 1938). Misfit that is smooth in θ also raises the residual correlation, which widens the reference: the test
-/// errs towards keeping a model, never towards rejecting a correct one.</para>
+/// <para><b>Verdict.</b> Lack-of-fit F test (Fisher 1922; Draper &amp; Smith 1998, §2.1): each run's field is also
+/// fitted alone by a weighted Fourier series of K harmonics, which absorbs any smooth misfit. Per run, the error scale is
+/// κ = Q_free/(m − (2K+1)·L) and F = [Σ(Q_model − Q_free)/(κ·L)]/d₁ on d₁ = Σ(2K+1) − k and d₂ = Σ(m − (2K+1)L)
+/// degrees of freedom, with L = 1 + 2Σρ_k the long-run variance factor of the correlated bin errors (ρ_k from the
+/// free-fit residuals). Not yet calibrated: see docs/model-expressions.md, "Status".</para>
 /// <para><b>Onset.</b> The μ_lab where min_θ f reaches 0, by bracketing and regula falsi (Illinois variant; Dowell
 /// &amp; Jarratt 1971); the 95% interval is the 2.5–97.5% range of onsets over parameter draws from N(q̂, Cov)
 /// (Monte-Carlo propagation of the fit's asymptotic distribution). Cost: O(iterations × points × program length × k).</para>
