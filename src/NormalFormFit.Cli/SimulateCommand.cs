@@ -8,7 +8,8 @@ internal static class SimulateCommand
 {
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
-        var model = new Option<string>("--model") { Description = "built-in model: rotor (θ̇ = μ − sin θ) or theta-neuron (θ̇ = 1 − cos θ + (1 + cos θ)μ)", DefaultValueFactory = _ => "rotor" };
+        var model = new Option<string>("--model") { Description = "built-in model: rotor (θ̇ = μ − sin θ) or theta-neuron (θ̇ = 1 − cos θ + (1 + cos θ)μ), or an expression in theta and mu such as 'mu - a*sin(theta)' (docs/model-expressions.md)", DefaultValueFactory = _ => "rotor" };
+        var set = new Option<string?>("--set") { Description = "values of the expression's parameters, e.g. a=0.8,k=0.1" };
         var pars = new Option<string>("--params") { Description = "control-parameter values, comma separated (e.g. 1.01,1.02,1.05)", Required = true };
         var outDir = new Option<string>("--out") { Description = "folder to write manifest.csv and the run files into (created if missing)", Required = true };
         var revs = new Option<int>("--revolutions") { Description = "revolutions per run", DefaultValueFactory = _ => 10 };
@@ -19,15 +20,35 @@ internal static class SimulateCommand
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
         var cmd = new Command("simulate", "Write synthetic runs and a manifest for a built-in model")
         {
-            model, pars, outDir, revs, dt, noise, diffusion, seed, quiet,
+            model, pars, outDir, revs, dt, noise, diffusion, seed, quiet, set,
         };
         cmd.SetAction(pr =>
         {
             var name = pr.GetValue(model)!;
             if (!BuiltInModels.TryGet(name, out var m))
             {
-                stderr.WriteLine($"nffit: usage: unknown model '{name}'; choose one of: {string.Join(", ", BuiltInModels.All.Select(x => x.Name))}");
-                return ExitCodes.BadInput;
+                // Not a built-in name: an expression of our model language.
+                var parsed = NormalFormFit.Compare.ModelExpression.Parse(name);
+                if (parsed.Value is null)
+                {
+                    stderr.WriteLine($"nffit: usage: --model is neither a built-in model ({string.Join(", ", BuiltInModels.All.Select(x => x.Name))}) nor a valid expression:");
+                    CompareCommand.Report(stderr, parsed.Diagnostics, name);
+                    return ExitCodes.BadInput;
+                }
+
+                if (!CompareCommand.TryAssignments(pr.GetValue(set), "--set", stderr, out var values))
+                {
+                    return ExitCodes.BadInput;
+                }
+
+                var bound = NormalFormFit.Compare.ExpressionPhaseModel.Bind(parsed.Value, values);
+                if (bound.Value is null)
+                {
+                    CompareCommand.Report(stderr, bound.Diagnostics, null);
+                    return ExitCodes.BadInput;
+                }
+
+                m = bound.Value;
             }
 
             var mus = new List<double>();

@@ -1,0 +1,173 @@
+using System.CommandLine;
+using System.Globalization;
+using NormalFormFit.Analysis;
+using NormalFormFit.Compare;
+using CompareOptions = NormalFormFit.Compare.CompareOptions;
+
+namespace NormalFormFit.Cli;
+
+internal static class CompareCommand
+{
+    public static Command Create(TextWriter stdout, TextWriter stderr)
+    {
+        var manifest = new Argument<string>("manifest") { Description = "CSV with header 'file,param' naming one run file per parameter value" };
+        var model = new Option<string>("--model") { Description = "the reduced model θ̇ = f(theta, mu; parameters), e.g. 'mu - a*sin(theta)' (see docs/model-expressions.md)", Required = true };
+        var start = new Option<string?>("--start") { Description = "starting values of parameters, e.g. a=0.8,k=0.1 (others start at 1)" };
+        var fix = new Option<string?>("--fix") { Description = "hold parameters at values, e.g. k=0" };
+        var c0 = new Option<double?>("--c0") { Description = "hold the offset of μ_model = c0 + c1·μ_lab at this value" };
+        var c1 = new Option<double?>("--c1") { Description = "hold the scale of μ_model = c0 + c1·μ_lab at this value" };
+        var noPeriods = new Option<bool>("--no-periods") { Description = "fit the fields only, leaving out the measured periods" };
+        var json = new Option<string?>("--json") { Description = "also write the JSON report to FILE ('-' for standard output, which then carries only the JSON)" };
+        var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
+        var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
+        var cmd = new Command("compare", "Check a reduced phase model against the runs: fitted parameters, onset, verdict, worst runs and phase regions")
+        {
+            manifest, model, start, fix, c0, c1, noPeriods, json, quiet, verbose,
+        };
+        cmd.SetAction(pr =>
+        {
+            var parsed = ModelExpression.Parse(pr.GetValue(model)!);
+            if (parsed.Value is null)
+            {
+                Report(stderr, parsed.Diagnostics, pr.GetValue(model)!);
+                return ExitCodes.BadInput;
+            }
+
+            if (!TryAssignments(pr.GetValue(start), "--start", stderr, out var starts) || !TryAssignments(pr.GetValue(fix), "--fix", stderr, out var fixeds))
+            {
+                return ExitCodes.BadInput;
+            }
+
+            var options = new CompareOptions
+            {
+                Start = starts,
+                Fixed = fixeds,
+                FixedOffset = pr.GetValue(c0),
+                FixedScale = pr.GetValue(c1),
+                UsePeriods = !pr.GetValue(noPeriods),
+            };
+            return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr);
+        });
+        return cmd;
+    }
+
+    internal static int Execute(string manifestPath, ModelExpression expression, CompareOptions options, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr)
+    {
+        var analysis = ManifestAnalyzer.Analyze(manifestPath, AnalyzeOptions.Default);
+        if (analysis.Value is null)
+        {
+            Report(stderr, analysis.Diagnostics, null);
+            return analysis.Diagnostics.Any(e => e.Code == InsufficientData.TooFewRuns) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+        }
+
+        var result = ModelComparer.Compare(analysis.Value.Runs, expression, options);
+        if (result.Value is null)
+        {
+            Report(stderr, result.Diagnostics, null);
+            return result.Diagnostics.Any(d => d.Code is CompareFailures.TooFewPoints or CompareFailures.CannotFit) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+        }
+
+        var c = result.Value;
+        if (jsonPath == "-")
+        {
+            using var buffer = new MemoryStream();
+            ComparisonJson.Write(c, buffer, NffitApp.Version);
+            stdout.WriteLine(System.Text.Encoding.UTF8.GetString(buffer.ToArray()));
+            return ExitCodes.Ok;
+        }
+
+        if (jsonPath is not null)
+        {
+            try
+            {
+                AtomicFile.Write(jsonPath, s => ComparisonJson.Write(c, s, NffitApp.Version));
+            }
+            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+            {
+                stderr.WriteLine($"nffit: {jsonPath}: error: cannot write the JSON report ({e.Message}); check that the folder exists and is writable");
+                return ExitCodes.BadInput;
+            }
+        }
+
+        if (!quiet)
+        {
+            stdout.Write(Format(c));
+        }
+
+        return ExitCodes.Ok;
+    }
+
+    internal static string Format(ModelComparison c)
+    {
+        var ic = CultureInfo.InvariantCulture;
+        var w = new StringWriter(ic);
+        w.WriteLine($"model  dθ/dt = {c.Expression}");
+        foreach (var p in c.Parameters.Append(c.Offset).Append(c.Scale))
+        {
+            w.WriteLine(string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  ± {p.StandardError:G2}{(p.Fixed ? "  (held)" : string.Empty)}"));
+        }
+
+        w.WriteLine(string.Create(ic, $"onset  μ_lab = {c.Onset.Value:G6} ± {c.Onset.StandardError:G2}   95% [{c.OnsetCi95.Low:G6}, {c.OnsetCi95.High:G6}]"));
+        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (lack-of-fit F = {c.Statistic:G4} on {c.ReferenceDegreesOfFreedom:F0} and {c.ReferenceScale:F0} df, p = {c.PValue:G2})"));
+        w.WriteLine("worst runs (mean square of standardised residuals; 1 is a good fit):");
+        foreach (var r in c.WorstRuns)
+        {
+            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {r.Param:G6}  {r.Ratio:F2}  model {(r.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(r.MeanResidual):F2} SE"));
+        }
+
+        w.WriteLine("worst phase regions (radians, in the data's phase):");
+        foreach (var g in c.WorstRegions)
+        {
+            w.WriteLine(string.Create(ic, $"  [{g.From:F2}, {g.To:F2})  {g.Ratio:F2}  model {(g.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(g.MeanResidual):F2} SE"));
+        }
+
+        foreach (var d in c.Diagnostics)
+        {
+            w.WriteLine(d.ToString());
+        }
+
+        return w.ToString();
+    }
+
+    /// <summary>Parses <c>name=value,name=value</c> (invariant culture); one message on the first bad item.</summary>
+    internal static bool TryAssignments(string? text, string option, TextWriter stderr, out Dictionary<string, double> values)
+    {
+        values = new Dictionary<string, double>(StringComparer.Ordinal);
+        if (string.IsNullOrWhiteSpace(text))
+        {
+            return true;
+        }
+
+        foreach (var part in text.Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries))
+        {
+            var eq = part.IndexOf('=', StringComparison.Ordinal);
+            if (eq <= 0 || !double.TryParse(part.AsSpan(eq + 1), NumberStyles.Float, CultureInfo.InvariantCulture, out var v) || !double.IsFinite(v))
+            {
+                stderr.WriteLine($"nffit: usage: {option}: '{part}' is not name=value; write e.g. a=0.8,k=0.1 (decimal point)");
+                return false;
+            }
+
+            var name = part[..eq].Trim();
+            if (!values.TryAdd(name, v))
+            {
+                stderr.WriteLine($"nffit: usage: {option}: '{name}' is given twice");
+                return false;
+            }
+        }
+
+        return true;
+    }
+
+    internal static void Report(TextWriter stderr, IReadOnlyList<Diagnostic> diagnostics, string? expression)
+    {
+        foreach (var d in diagnostics)
+        {
+            stderr.WriteLine($"nffit: {d}");
+            if (expression is not null && d.Column is { } col)
+            {
+                stderr.WriteLine($"nffit:   {expression}");
+                stderr.WriteLine($"nffit:   {new string(' ', Math.Max(col - 1, 0))}^");
+            }
+        }
+    }
+}

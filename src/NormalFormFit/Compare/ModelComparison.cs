@@ -1,0 +1,90 @@
+namespace NormalFormFit.Compare;
+
+/// <summary>A fitted (or held) parameter.</summary>
+/// <param name="Name">Its name in the expression, or <c>c0</c> / <c>c1</c> for the map.</param>
+/// <param name="Value">The estimate.</param>
+/// <param name="StandardError">Standard error (0 when held fixed).</param>
+/// <param name="Fixed">True when held at a given value.</param>
+public sealed record FittedParameter(string Name, double Value, double StandardError, bool Fixed)
+{
+    /// <summary>Approximate 95% interval, value ± 1.96 SE.</summary>
+    public Interval Ci95 => new(Value - (1.96 * StandardError), Value + (1.96 * StandardError));
+}
+
+/// <summary>How well the model fits one run.</summary>
+/// <param name="File">The run file.</param>
+/// <param name="Param">Lab parameter μ_lab.</param>
+/// <param name="Points">Field bins plus period points of the run.</param>
+/// <param name="Statistic">Sum of squared standardised residuals.</param>
+/// <param name="Expected">Its expectation for a correct model.</param>
+/// <param name="MeanResidual">Mean standardised residual (model − data): positive when the model is too fast.</param>
+/// <param name="PeriodResidual">Standardised residual of the frequency 1/T (model − data); NaN when not used.</param>
+public sealed record RunMisfit(string File, double Param, int Points, double Statistic, double Expected, double MeanResidual, double PeriodResidual)
+{
+    /// <summary>Statistic / Expected: about 1 for a correct model.</summary>
+    public double Ratio => Statistic / Expected;
+}
+
+/// <summary>How well the model fits one phase region, over all runs.</summary>
+/// <param name="From">Start of the region (radians, in the data's phase).</param>
+/// <param name="To">End of the region.</param>
+/// <param name="Points">Field bins in the region.</param>
+/// <param name="Statistic">Sum of squared standardised residuals.</param>
+/// <param name="Expected">Its expectation for a correct model.</param>
+/// <param name="MeanResidual">Mean standardised residual (model − data): positive when the model is too fast there.</param>
+public sealed record RegionMisfit(double From, double To, int Points, double Statistic, double Expected, double MeanResidual)
+{
+    /// <summary>Statistic / Expected: about 1 for a correct model.</summary>
+    public double Ratio => Statistic / Expected;
+}
+
+/// <summary>
+/// A reduced phase model θ̇ = f(θ, μ; p) fitted to the reconstructed fields and measured periods of a set of runs,
+/// with μ_model = c₀ + c₁·μ_lab, and the verdict on whether it holds.
+/// </summary>
+/// <param name="Expression">The model as written.</param>
+/// <param name="Parameters">The expression's parameters, in order of appearance.</param>
+/// <param name="Offset">c₀.</param>
+/// <param name="Scale">c₁.</param>
+/// <param name="Onset">μ_lab where min_θ f reaches 0, with standard error (NaN when the model has no onset in reach).</param>
+/// <param name="OnsetCi95">95% interval of the onset from parameter draws.</param>
+/// <param name="Statistic">Goodness-of-fit statistic Q = Σ r² over all points.</param>
+/// <param name="Expected">E[Q] for a correct model.</param>
+/// <param name="PValue">P(Q' ≥ Q) under the reference distribution of a correct model.</param>
+/// <param name="Consistent">True when PValue ≥ the chosen significance.</param>
+/// <param name="Points">Data points fitted.</param>
+/// <param name="Runs">Misfit per run, in input order.</param>
+/// <param name="Regions">Misfit per phase region.</param>
+/// <param name="WorstRuns">The runs with the largest Ratio, worst first.</param>
+/// <param name="WorstRegions">The regions with the largest Ratio, worst first.</param>
+/// <param name="Diagnostics">Notes and warnings about the fit.</param>
+public sealed record ModelComparison(
+    string Expression,
+    IReadOnlyList<FittedParameter> Parameters,
+    FittedParameter Offset,
+    FittedParameter Scale,
+    Estimate Onset,
+    Interval OnsetCi95,
+    double Statistic,
+    double Expected,
+    double PValue,
+    bool Consistent,
+    int Points,
+    IReadOnlyList<RunMisfit> Runs,
+    IReadOnlyList<RegionMisfit> Regions,
+    IReadOnlyList<RunMisfit> WorstRuns,
+    IReadOnlyList<RegionMisfit> WorstRegions,
+    IReadOnlyList<Diagnostic> Diagnostics)
+{
+    /// <summary>Effective degrees of freedom h of the scaled χ² reference g·χ²(h).</summary>
+    public double ReferenceDegreesOfFreedom { get; init; }
+
+    /// <summary>Scale g of the scaled χ² reference g·χ²(h).</summary>
+    public double ReferenceScale { get; init; }
+
+    /// <summary>Pooled lag correlations of neighbouring field bins (lag 1, 2, …) used for the reference.</summary>
+    public IReadOnlyList<double> BinCorrelation { get; init; } = [];
+
+    /// <summary>Levenberg–Marquardt iterations taken.</summary>
+    public int Iterations { get; init; }
+}
