@@ -70,6 +70,12 @@ public static class OnsetAnalysis
             diags.Add(new Diagnostic(Severity.Info, "no-scaling", "the scaling law needs at least four runs with timed periods"));
         }
 
+        if (aPoints.Count == 0 && runs.Any(r => r.Flags.Contains(RunFlags.PeriodsOnly)))
+        {
+            diags.Add(new Diagnostic(Severity.Info, "bottleneck-not-available",
+                "event times carry periods only: the bottleneck route is not available; the onset comes from the period route"));
+        }
+
         diags.AddRange(fromA.Diagnostics);
         diags.AddRange(fromT.Diagnostics);
         return new AnalysisReport(runs, fromA, fromT, agreement, scaling, diags);

@@ -29,6 +29,15 @@ public static class RunFlags
 
     /// <summary>The window-halving check shows a quartic bias of a comparable to its error.</summary>
     public const string WindowBias = "window-bias";
+
+    /// <summary>Gaps longer than a few sampling steps split the run into segments.</summary>
+    public const string LargeGaps = "large-gaps";
+
+    /// <summary>The orbit of the positions is far from an ellipse: the phase is a protophase (a, b in its units).</summary>
+    public const string NotAnEllipse = "not-an-ellipse";
+
+    /// <summary>Event times: periods only, no bottleneck.</summary>
+    public const string PeriodsOnly = "periods-only";
 }
 
 /// <summary>Smoothing summary of a run.</summary>
@@ -75,4 +84,10 @@ public sealed record RunResult(
 {
     /// <summary>True when the run turned at least once.</summary>
     public bool IsTurning => !Flags.Contains(RunFlags.NotTurning);
+
+    /// <summary>What the run file recorded: "phase", "positions" or "events".</summary>
+    public string InputKind { get; init; } = "phase";
+
+    /// <summary>The ellipse fitted to the orbit when the run was recorded as positions; null otherwise.</summary>
+    public NormalFormFit.Ingest.OrbitSummary? Orbit { get; init; }
 }
