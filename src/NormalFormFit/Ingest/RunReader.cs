@@ -45,8 +45,11 @@ public sealed record RunReadOptions
 /// <summary>Reads run files: phase, positions or event times versus time.</summary>
 public static class RunReader
 {
-    /// <summary>A time step longer than this many typical (median) steps splits a run into segments.</summary>
-    public const double GapFactor = 3.0;
+    /// <summary>
+    /// A time step longer than this many typical (median) steps splits a run into segments. Shorter gaps (a few
+    /// dropped frames) are ordinary non-uniform sampling that the smoothing spline bridges (common practice, no source).
+    /// </summary>
+    public const double GapFactor = 10.0;
 
     /// <summary>
     /// Reads <paramref name="path"/> as a phase recording (<c>t,theta</c>). Errors (missing file, no data, text where
@@ -275,7 +278,7 @@ public static class RunReader
 
     /// <summary>
     /// Splits segments where a time step exceeds <see cref="GapFactor"/> times the median step (estimated from at most
-    /// 4097 evenly spread steps, so O(n)). Single dropped frames (two steps) do not split.
+    /// 4097 evenly spread steps, so O(n)). A few dropped frames in a row do not split.
     /// </summary>
     internal static int[] SplitAtLongSteps(double[] time, int[] segments, out int gaps, out double longest)
     {
