@@ -44,6 +44,32 @@ public class EventAccuracyTests(ITestOutputHelper output)
     }
 
     [Fact]
+    public void SpikeTimeFiles_ThroughTheCommandLine_ReportTheBottleneckRouteAsNotAvailable()
+    {
+        using var files = new RecordingFiles();
+        for (var i = 0; i < Mus.Length; i++)
+        {
+            var sim = Simulator.Run(BuiltInModels.ThetaNeuron, new SimulationOptions { Mu = Mus[i], Revolutions = 8, SamplingInterval = 0.02, DynamicNoise = 1e-5, Seed = 40 + i });
+            files.AddRun($"spikes{i}.csv", Mus[i], "spike_time", CameraView.CrossingTimes(sim.Time, sim.TruePhase, Math.PI));
+        }
+
+        var manifest = files.WriteManifest();
+        var (code, stdout, stderr) = MalformedInputTests.Run(["analyze", manifest, "--json", "-"]);
+        Assert.True(code == 0, stderr);
+        using var json = System.Text.Json.JsonDocument.Parse(stdout);
+        var onset = json.RootElement.GetProperty("onset");
+        Assert.Equal(System.Text.Json.JsonValueKind.Null, onset.GetProperty("from_bottleneck").GetProperty("value").ValueKind);
+        var value = onset.GetProperty("from_period").GetProperty("value").GetDouble();
+        Assert.InRange(value, onset.GetProperty("from_period").GetProperty("ci95_low").GetDouble(), onset.GetProperty("from_period").GetProperty("ci95_high").GetDouble());
+        var run = json.RootElement.GetProperty("runs")[0];
+        Assert.Equal("events", run.GetProperty("input_kind").GetString());
+        Assert.Contains("periods-only", run.GetProperty("flags").EnumerateArray().Select(f => f.GetString()));
+        Assert.Contains(json.RootElement.GetProperty("diagnostics").EnumerateArray(), d => d.GetProperty("code").GetString() == "bottleneck-not-available");
+        var (_, text, _) = MalformedInputTests.Run(["analyze", manifest]);
+        Assert.Contains("from bottleneck (a → 0):  not available", text, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public void PeriodRouteIntervals_FromSpikeTimes_CoverTheTruthInSeededRepeats()
     {
         // 60 seeded repeats: at true coverage 95% the count of covering intervals is Binomial(60, 0.95), mean 57,
