@@ -19,7 +19,11 @@ public class EventAccuracyTests(ITestOutputHelper output)
             // mean period by more than a fraction of its error at these μ (a^(3/2) ≥ 10⁻³ ≫ D).
             var sim = Simulator.Run(BuiltInModels.ThetaNeuron, new SimulationOptions
             {
-                Mu = Mus[i], Revolutions = 8, SamplingInterval = 0.02, DynamicNoise = 1e-5, Seed = GaussianSource.DeriveSeed(seed, i),
+                Mu = Mus[i],
+                Revolutions = 8,
+                SamplingInterval = 0.02,
+                DynamicNoise = 1e-5,
+                Seed = GaussianSource.DeriveSeed(seed, i),
             });
             var spikes = CameraView.CrossingTimes(sim.Time, sim.TruePhase, Math.PI);
             var rec = new RunRecording(RecordingKind.Events, null, null, new EventRecording($"s{i}", spikes, [0]));
