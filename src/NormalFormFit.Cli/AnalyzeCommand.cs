@@ -16,12 +16,21 @@ internal static class AnalyzeCommand
         var unit = new Option<string>("--phase-unit") { Description = "unit of the phase column", DefaultValueFactory = _ => "radians" };
         unit.AcceptOnlyFromAmong("radians", "degrees", "turns");
         var decimalComma = new Option<bool>("--decimal-comma") { Description = "numbers in run files use a decimal comma (fields then separated by ';', tab or blanks)" };
+        var kind = new Option<string>("--kind") { Description = "what the run files record: auto (from the columns), phase (t,theta), positions (t,x,y) or events (one column of event times)", DefaultValueFactory = _ => "auto" };
+        kind.AcceptOnlyFromAmong("auto", "phase", "positions", "events");
+        var xCol = new Option<string>("--x-column") { Description = "positions: x (or first state variable) column, header name or 1-based position", DefaultValueFactory = _ => "x" };
+        var yCol = new Option<string>("--y-column") { Description = "positions: y (or second state variable) column, header name or 1-based position", DefaultValueFactory = _ => "y" };
+        var eventCol = new Option<string?>("--event-column") { Description = "events: column of event times, header name or 1-based position (default: the only column, else the time column)" };
+        var delimiter = new Option<string>("--delimiter") { Description = "field separator of run files: auto, comma, semicolon, tab or whitespace", DefaultValueFactory = _ => "auto" };
+        delimiter.AcceptOnlyFromAmong("auto", "comma", "semicolon", "tab", "whitespace");
+        var yDown = new Option<bool>("--y-down") { Description = "positions: the y axis points down (image rows); the turning sense is reported as seen on screen" };
+        var unwrapped = new Option<bool>("--phase-unwrapped") { Description = "the phase column is already unwrapped: use steps between samples as recorded" };
         var threads = new Option<int>("--threads") { Description = "runs analysed at once (default: one per core); results do not depend on it", DefaultValueFactory = _ => Environment.ProcessorCount };
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
         var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
         var cmd = new Command("analyze", "Find the onset from a set of runs: bottleneck normal form, periods, scaling")
         {
-            manifest, json, timeCol, phaseCol, unit, decimalComma, threads, quiet, verbose,
+            manifest, json, timeCol, phaseCol, unit, decimalComma, kind, xCol, yCol, eventCol, delimiter, yDown, unwrapped, threads, quiet, verbose,
         };
         cmd.SetAction(pr =>
         {
@@ -38,6 +47,26 @@ internal static class AnalyzeCommand
                         _ => PhaseUnit.Radians,
                     },
                     DecimalComma = pr.GetValue(decimalComma),
+                    Kind = pr.GetValue(kind) switch
+                    {
+                        "phase" => RecordingKind.Phase,
+                        "positions" => RecordingKind.Positions,
+                        "events" => RecordingKind.Events,
+                        _ => RecordingKind.Auto,
+                    },
+                    XColumn = pr.GetValue(xCol)!,
+                    YColumn = pr.GetValue(yCol)!,
+                    EventColumn = pr.GetValue(eventCol),
+                    Delimiter = pr.GetValue(delimiter) switch
+                    {
+                        "comma" => Delimiter.Comma,
+                        "semicolon" => Delimiter.Semicolon,
+                        "tab" => Delimiter.Tab,
+                        "whitespace" => Delimiter.Whitespace,
+                        _ => Delimiter.Auto,
+                    },
+                    YDown = pr.GetValue(yDown),
+                    PhaseUnwrapped = pr.GetValue(unwrapped),
                 },
                 Parallelism = Math.Max(1, pr.GetValue(threads)),
             };

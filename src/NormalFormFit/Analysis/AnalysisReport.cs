@@ -153,6 +153,12 @@ public static class OnsetAnalysis
             }
         }
 
+        if (aPoints.Count == 0 && runs.Any(r => r.Flags.Contains(RunFlags.PeriodsOnly)))
+        {
+            diags.Add(new Diagnostic(Severity.Info, "bottleneck-not-available",
+                "event times carry periods only: the bottleneck route is not available; the onset comes from the period route"));
+        }
+
         diags.AddRange(fromA.Diagnostics);
         diags.AddRange(fromT.Diagnostics);
         return new AnalysisReport(runs, fromA, fromT, agreement, scaling, diags) { NextMeasurements = next };

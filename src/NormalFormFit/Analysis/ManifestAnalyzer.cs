@@ -49,12 +49,16 @@ public static class ManifestAnalyzer
         {
             var e = entries[i];
             var display = Path.Combine(Path.GetDirectoryName(manifestPath) ?? string.Empty, e.File);
-            var rec = RunReader.Read(e.FullPath, options.Read, display);
+            var rec = RunReader.ReadRecording(e.FullPath, options.Read, display);
             readDiags[i] = rec.Diagnostics;
             if (rec.Value is not null)
             {
-                var run = RunAnalyzer.Analyze(Trajectory.FromRecording(rec.Value), e.Param, e.File, e.Label, options.Run);
-                results[i] = run with { Diagnostics = [.. rec.Diagnostics.Select(d => d with { File = e.File }), .. run.Diagnostics] };
+                var run = RecordingAnalyzer.Analyze(rec.Value, e.Param, e.File, e.Label, options.Run, rec.Diagnostics);
+                results[i] = run.Value;
+                if (run.Value is null)
+                {
+                    readDiags[i] = [.. run.Diagnostics.Select(d => d with { File = display })];
+                }
             }
 
             progress?.Report(Interlocked.Increment(ref done));

@@ -38,6 +38,15 @@ public static class RunFlags
 
     /// <summary>The run rests at a parameter value where other runs turn (or the reverse): hysteresis or bistability.</summary>
     public const string Bistable = "bistable";
+
+    /// <summary>Gaps longer than a few sampling steps split the run into segments.</summary>
+    public const string LargeGaps = "large-gaps";
+
+    /// <summary>The orbit of the positions is far from an ellipse: the phase is a protophase (a, b in its units).</summary>
+    public const string NotAnEllipse = "not-an-ellipse";
+
+    /// <summary>Event times: periods only, no bottleneck.</summary>
+    public const string PeriodsOnly = "periods-only";
 }
 
 /// <summary>Smoothing summary of a run.</summary>
@@ -90,4 +99,10 @@ public sealed record RunResult(
 
     /// <summary>Phase-diffusion estimate and its effect on the bottleneck passage (null when the run is too short).</summary>
     public NoiseEstimate? Noise { get; init; }
+
+    /// <summary>What the run file recorded: "phase", "positions" or "events".</summary>
+    public string InputKind { get; init; } = "phase";
+
+    /// <summary>The ellipse fitted to the orbit when the run was recorded as positions; null otherwise.</summary>
+    public NormalFormFit.Ingest.OrbitSummary? Orbit { get; init; }
 }

@@ -20,117 +20,142 @@ public sealed record RunReadOptions
     /// <summary>Numbers use a decimal comma (then the separator must not be a comma).</summary>
     public bool DecimalComma { get; init; }
 
+    /// <summary>What the file records; inferred from the columns by default.</summary>
+    public RecordingKind Kind { get; init; } = RecordingKind.Auto;
+
+    /// <summary>Horizontal position column (positions): a header name or a 1-based position.</summary>
+    public string XColumn { get; init; } = "x";
+
+    /// <summary>Vertical position column (positions): a header name or a 1-based position.</summary>
+    public string YColumn { get; init; } = "y";
+
+    /// <summary>Event-time column (events); null: the only column, else the time column.</summary>
+    public string? EventColumn { get; init; }
+
+    /// <summary>The y axis of the positions points down (image rows): the turning sense is reported as seen on screen.</summary>
+    public bool YDown { get; init; }
+
+    /// <summary>The phase column is already unwrapped: steps between samples are taken as recorded.</summary>
+    public bool PhaseUnwrapped { get; init; }
+
     /// <summary>Default options: columns <c>t</c> and <c>theta</c>, radians.</summary>
     public static RunReadOptions Default { get; } = new();
 }
 
-/// <summary>A phase recording as read: time and phase in radians (not yet unwrapped), split at gaps.</summary>
-/// <param name="File">Path as given by the user.</param>
-/// <param name="Time">Sample times, strictly increasing.</param>
-/// <param name="Phase">Phase in radians, as recorded (wrapped or not).</param>
-/// <param name="SegmentStarts">Index of the first sample of each segment; gaps (missing values) separate segments.</param>
-public sealed record PhaseRecording(string File, double[] Time, double[] Phase, int[] SegmentStarts);
-
-/// <summary>Reads phase-versus-time run files.</summary>
+/// <summary>Reads run files: phase, positions or event times versus time.</summary>
 public static class RunReader
 {
     /// <summary>
-    /// Reads <paramref name="path"/>. Errors (missing file, no data, text where a number should be, time
-    /// not increasing, too few fields) come back as diagnostics naming file, line and column; the reader
-    /// never throws for bad content.
+    /// A time step longer than this many typical (median) steps splits a run into segments. Shorter gaps (a few
+    /// dropped frames) are ordinary non-uniform sampling that the smoothing spline bridges (common practice, no source).
+    /// </summary>
+    public const double GapFactor = 10.0;
+
+    /// <summary>
+    /// Reads <paramref name="path"/> as a phase recording (<c>t,theta</c>). Errors (missing file, no data, text where
+    /// a number should be, time not increasing, wrong number of fields) come back as diagnostics naming file, line
+    /// and column; the reader never throws for bad content.
     /// </summary>
     public static Loaded<PhaseRecording> Read(string path, RunReadOptions? options = null, string? displayName = null)
+    {
+        var any = ReadRecording(path, (options ?? RunReadOptions.Default) with { Kind = RecordingKind.Phase }, displayName);
+        return new Loaded<PhaseRecording>(any.Value?.Phase, any.Diagnostics);
+    }
+
+    /// <summary>Reads a phase run from a stream; <paramref name="name"/> is used in messages.</summary>
+    public static Loaded<PhaseRecording> Read(Stream stream, string name, RunReadOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        var any = ReadRecording(stream, name, options with { Kind = RecordingKind.Phase });
+        return new Loaded<PhaseRecording>(any.Value?.Phase, any.Diagnostics);
+    }
+
+    /// <summary>
+    /// Reads <paramref name="path"/> as whatever it records (see <see cref="RecordingKind"/>; inferred from the
+    /// columns unless <see cref="RunReadOptions.Kind"/> says otherwise). Never throws for bad content.
+    /// </summary>
+    public static Loaded<RunRecording> ReadRecording(string path, RunReadOptions? options = null, string? displayName = null)
     {
         ArgumentNullException.ThrowIfNull(path);
         options ??= RunReadOptions.Default;
         var name = displayName ?? path;
         if (!System.IO.File.Exists(path))
         {
-            return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "missing-file",
+            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "missing-file",
                 "the file does not exist; check the path (paths in a manifest are relative to the manifest)", name));
         }
 
         try
         {
             using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, 1 << 16);
-            return Read(stream, name, options);
+            return ReadRecording(stream, name, options);
         }
         catch (IOException e)
         {
-            return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the file: {e.Message}", name));
+            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the file: {e.Message}", name));
         }
         catch (UnauthorizedAccessException e)
         {
-            return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the file: {e.Message}", name));
+            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the file: {e.Message}", name));
         }
     }
 
-    /// <summary>Reads a run from a stream; <paramref name="name"/> is used in messages.</summary>
-    public static Loaded<PhaseRecording> Read(Stream stream, string name, RunReadOptions options)
+    /// <summary>Reads a run of any kind from a stream; <paramref name="name"/> is used in messages.</summary>
+    public static Loaded<RunRecording> ReadRecording(Stream stream, string name, RunReadOptions options)
     {
         ArgumentNullException.ThrowIfNull(stream);
         ArgumentNullException.ThrowIfNull(options);
+        ArgumentNullException.ThrowIfNull(name);
         using var reader = new DelimitedTextReader(stream, options.Delimiter);
         if (!reader.Read())
         {
-            return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "empty-file",
-                "the file holds no data (only blank or # comment lines); expected a header such as 't,theta' and one sample per line", name));
+            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "empty-file",
+                "the file holds no data (only blank or # comment lines); expected a header such as 't,theta', 't,x,y' or 'spike_time' and one sample per line", name));
         }
 
         if (reader.LineLooksBinary())
         {
-            return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "binary-file",
-                "the file is not text (it holds control bytes or invalid UTF-8); expected a CSV text file of time and phase", name, reader.LineNumber));
+            return Loaded.Fail<RunRecording>(Binary(name, reader.LineNumber));
         }
 
         var diagnostics = new List<Diagnostic>();
         var header = Enumerable.Range(0, reader.FieldCount).Select(reader.FieldText).ToArray();
-        var headerIsData = header.All(h => DelimitedTextReader.TryParseNumber(System.Text.Encoding.UTF8.GetBytes(h), options.DecimalComma, out _));
-        int tCol, pCol;
+        var headerIsData = Enumerable.Range(0, reader.FieldCount).All(i =>
+            DelimitedTextReader.TryParseNumber(reader.Field(i), options.DecimalComma, out _) || DelimitedTextReader.IsMissing(reader.Field(i)));
+        var layout = headerIsData ? LayoutWithoutHeader(header.Length, options) : LayoutFromHeader(header, options);
+        if (layout.Error is { } error)
+        {
+            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "missing-column", error, name, reader.LineNumber, 1));
+        }
+
         if (headerIsData)
         {
-            if (!TryPosition(options.TimeColumn, out tCol))
-            {
-                tCol = 0;
-            }
-
-            if (!TryPosition(options.PhaseColumn, out pCol))
-            {
-                pCol = 1;
-            }
-
             diagnostics.Add(new Diagnostic(Severity.Info, "no-header",
-                $"no header line; reading column {tCol + 1} as time and column {pCol + 1} as phase", name, reader.LineNumber));
-        }
-        else
-        {
-            var t = Resolve(options.TimeColumn, header);
-            var p = Resolve(options.PhaseColumn, header);
-            if (t < 0 || p < 0)
-            {
-                var missing = t < 0 ? options.TimeColumn : options.PhaseColumn;
-                return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "missing-column",
-                    $"no column '{missing}' in the header (found: {string.Join(", ", header)}); name the columns with --time-column/--phase-column or by position (1, 2, …)",
-                    name, reader.LineNumber, 1));
-            }
-
-            (tCol, pCol) = (t, p);
+                $"no header line; reading {Describe(layout)}; name the columns in a header line or set --kind", name, reader.LineNumber));
         }
 
-        var needed = Math.Max(tCol, pCol) + 1;
-        var scale = options.PhaseUnit switch
+        var cols = layout.Columns;
+        var expectedFields = header.Length;
+        var scale = layout.Kind != RecordingKind.Phase ? 1.0 : options.PhaseUnit switch
         {
             PhaseUnit.Degrees => Math.PI / 180.0,
             PhaseUnit.Turns => 2.0 * Math.PI,
             _ => 1.0,
         };
-        var time = new GrowableArray(1024);
-        var phase = new GrowableArray(1024);
+        var values = new GrowableArray[cols.Length];
+        for (var c = 0; c < cols.Length; c++)
+        {
+            values[c] = new GrowableArray(1024);
+        }
+
         var segments = new List<int> { 0 };
         var gapPending = false;
         var lastTime = double.NegativeInfinity;
         var lastTimeLine = 0;
+        var decimalComma = options.DecimalComma;
+        var firstData = true;
         var first = true;
+        Span<double> parsed = stackalloc double[3];
         do
         {
             if (first)
@@ -142,68 +167,270 @@ public static class RunReader
                 }
             }
 
-            if (reader.FieldCount < needed)
+            if (reader.FieldCount != expectedFields)
             {
                 if (reader.LineLooksBinary())
                 {
-                    return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "binary-file",
-                        "the file is not text (control bytes or invalid UTF-8); expected a CSV text file of time and phase", name, reader.LineNumber));
+                    return Loaded.Fail<RunRecording>(Binary(name, reader.LineNumber));
                 }
 
-                return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "too-few-fields",
-                    $"found {reader.FieldCount} field(s), expected at least {needed}; every line needs a time and a phase value",
+                var what = headerIsData ? "the first line" : "the header";
+                return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "wrong-field-count",
+                    $"found {reader.FieldCount} field(s) separated by {DelimiterName(reader.Delimiter)}, but {what} has {expectedFields}; every line needs the same columns (a decimal comma in a comma-separated file splits numbers: use ';' between fields, or pass --delimiter)",
                     name, reader.LineNumber, 1));
             }
 
-            var tf = reader.Field(tCol);
-            var pf = reader.Field(pCol);
-            if (DelimitedTextReader.IsMissing(tf) || DelimitedTextReader.IsMissing(pf))
+            if (firstData)
             {
-                gapPending = time.Count > 0;
+                firstData = false;
+                if (!decimalComma && reader.Delimiter != Delimiter.Comma && LooksLikeDecimalComma(reader, cols))
+                {
+                    decimalComma = true;
+                    diagnostics.Add(new Diagnostic(Severity.Info, "decimal-comma",
+                        "numbers use a decimal comma (detected: commas inside numbers, no decimal points, fields not separated by commas)", name, reader.LineNumber));
+                }
+            }
+
+            var missing = false;
+            for (var c = 0; c < cols.Length; c++)
+            {
+                if (DelimitedTextReader.IsMissing(reader.Field(cols[c])))
+                {
+                    missing = true;
+                    break;
+                }
+            }
+
+            if (missing)
+            {
+                gapPending = values[0].Count > 0;
                 continue;
             }
 
-            if (!DelimitedTextReader.TryParseNumber(tf, options.DecimalComma, out var tv) || !double.IsFinite(tv))
+            for (var c = 0; c < cols.Length; c++)
             {
-                return Loaded.Fail<PhaseRecording>(BadNumber(reader, tCol, name, "time", options.DecimalComma));
+                if (!DelimitedTextReader.TryParseNumber(reader.Field(cols[c]), decimalComma, out parsed[c]) || !double.IsFinite(parsed[c]))
+                {
+                    if (reader.LineLooksBinary())
+                    {
+                        return Loaded.Fail<RunRecording>(Binary(name, reader.LineNumber));
+                    }
+
+                    return Loaded.Fail<RunRecording>(BadNumber(reader, cols[c], name, layout.Roles[c], decimalComma));
+                }
             }
 
-            if (!DelimitedTextReader.TryParseNumber(pf, options.DecimalComma, out var pv) || !double.IsFinite(pv))
-            {
-                return Loaded.Fail<PhaseRecording>(BadNumber(reader, pCol, name, "phase", options.DecimalComma));
-            }
-
+            var tv = parsed[0];
             if (tv <= lastTime)
             {
                 var what = tv == lastTime ? "repeats" : "goes backwards";
-                return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "time-not-increasing",
+                return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "time-not-increasing",
                     string.Create(CultureInfo.InvariantCulture,
-                        $"time {what} ({tv:R} after {lastTime:R} on line {lastTimeLine}); samples must be in strictly increasing time: sort the file or remove duplicate rows"),
-                    name, reader.LineNumber, reader.ColumnOf(tCol)));
+                        $"{layout.Roles[0]} {what} ({tv:R} after {lastTime:R} on line {lastTimeLine}); values must strictly increase: sort the file or remove duplicate rows"),
+                    name, reader.LineNumber, reader.ColumnOf(cols[0])));
             }
 
             if (gapPending)
             {
-                segments.Add(time.Count);
+                segments.Add(values[0].Count);
                 gapPending = false;
             }
 
             lastTime = tv;
             lastTimeLine = reader.LineNumber;
-            time.Add(tv);
-            phase.Add(pv * scale);
+            values[0].Add(tv);
+            for (var c = 1; c < cols.Length; c++)
+            {
+                values[c].Add(parsed[c] * scale);
+            }
         }
         while (reader.Read());
 
-        if (time.Count == 0)
+        if (values[0].Count == 0)
         {
-            return Loaded.Fail<PhaseRecording>(new Diagnostic(Severity.Error, "no-data",
-                "the file has a header but no data lines; expected one line per sample (time, phase)", name, reader.LineNumber));
+            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "no-data",
+                $"the file has a header but no data lines; expected one line per sample ({Describe(layout)})", name, reader.LineNumber));
         }
 
-        return new Loaded<PhaseRecording>(
-            new PhaseRecording(name, time.ToArray(), phase.ToArray(), [.. segments]), diagnostics);
+        var time = values[0].ToArray();
+        int[] segs = [.. segments];
+        if (layout.Kind != RecordingKind.Events)
+        {
+            segs = SplitAtLongSteps(time, segs, out var gaps, out var longest);
+            if (gaps > 0)
+            {
+                diagnostics.Add(new Diagnostic(Severity.Warning, "large-gaps", string.Create(CultureInfo.InvariantCulture,
+                    $"{gaps} gap(s) longer than {GapFactor:G} typical sampling steps (longest {longest:G3} steps); the run is analysed in {segs.Length} segments: check for lost frames or paused recording"),
+                    name));
+            }
+        }
+
+        var recording = layout.Kind switch
+        {
+            RecordingKind.Phase => new RunRecording(RecordingKind.Phase,
+                new PhaseRecording(name, time, values[1].ToArray(), segs) { Unwrapped = options.PhaseUnwrapped }, null, null),
+            RecordingKind.Positions => new RunRecording(RecordingKind.Positions, null,
+                new PositionRecording(name, time, values[1].ToArray(), values[2].ToArray(), segs, options.YDown), null),
+            _ => new RunRecording(RecordingKind.Events, null, null, new EventRecording(name, time, segs)),
+        };
+        return new Loaded<RunRecording>(recording, diagnostics);
     }
+
+    /// <summary>
+    /// Splits segments where a time step exceeds <see cref="GapFactor"/> times the median step (estimated from at most
+    /// 4097 evenly spread steps, so O(n)). A few dropped frames in a row do not split.
+    /// </summary>
+    internal static int[] SplitAtLongSteps(double[] time, int[] segments, out int gaps, out double longest)
+    {
+        gaps = 0;
+        longest = 0;
+        var n = time.Length;
+        if (n < 3)
+        {
+            return segments;
+        }
+
+        var stride = Math.Max(1, (n - 1) / 4096);
+        var sample = new List<double>();
+        for (var i = 1; i < n; i += stride)
+        {
+            sample.Add(time[i] - time[i - 1]);
+        }
+
+        sample.Sort();
+        var typical = sample[sample.Count / 2];
+        if (!(typical > 0))
+        {
+            return segments;
+        }
+
+        var result = new List<int>();
+        var k = 0;
+        for (var i = 0; i < n; i++)
+        {
+            if (k < segments.Length && segments[k] == i)
+            {
+                result.Add(i);
+                k++;
+            }
+            else if (i > 0)
+            {
+                var ratio = (time[i] - time[i - 1]) / typical;
+                if (ratio > GapFactor)
+                {
+                    result.Add(i);
+                    gaps++;
+                    longest = Math.Max(longest, ratio);
+                }
+            }
+        }
+
+        return [.. result];
+    }
+
+    private sealed record Layout(RecordingKind Kind, int[] Columns, string[] Roles, string? Error);
+
+    private static readonly string[] PhaseRoles = ["time", "phase"];
+    private static readonly string[] PositionRoles = ["time", "x", "y"];
+    private static readonly string[] EventRoles = ["event time"];
+
+    private static Layout LayoutWithoutHeader(int fields, RunReadOptions o)
+    {
+        var kind = o.Kind != RecordingKind.Auto ? o.Kind
+            : fields == 1 ? RecordingKind.Events
+            : fields == 2 ? RecordingKind.Phase
+            : RecordingKind.Positions;
+        int Pos(string? spec, int fallback) => spec is not null && TryPosition(spec, out var k) ? k : fallback;
+        int[] cols = kind switch
+        {
+            RecordingKind.Phase => [Pos(o.TimeColumn, 0), Pos(o.PhaseColumn, 1)],
+            RecordingKind.Positions => [Pos(o.TimeColumn, 0), Pos(o.XColumn, 1), Pos(o.YColumn, 2)],
+            _ => [Pos(o.EventColumn ?? o.TimeColumn, 0)],
+        };
+        var roles = Roles(kind);
+        var beyond = Array.FindIndex(cols, c => c >= fields);
+        return beyond >= 0
+            ? new Layout(kind, cols, roles, $"the {roles[beyond]} column is {cols[beyond] + 1} but the first line has only {fields} field(s); give the column positions with --time-column, --phase-column, --x-column, --y-column or --event-column")
+            : new Layout(kind, cols, roles, null);
+    }
+
+    private static Layout LayoutFromHeader(string[] header, RunReadOptions o)
+    {
+        var found = string.Join(", ", header);
+        var hint = "expected 't,theta' (phase), 't,x,y' (positions) or one column of event times; name the columns with --time-column, --phase-column, --x-column, --y-column or --event-column (by header name or 1-based position), or set --kind";
+        var kind = o.Kind;
+        if (kind == RecordingKind.Auto)
+        {
+            kind = Resolve(o.PhaseColumn, header) >= 0 ? RecordingKind.Phase
+                : Resolve(o.XColumn, header) >= 0 && Resolve(o.YColumn, header) >= 0 ? RecordingKind.Positions
+                : header.Length == 1 || (o.EventColumn is { } ev && Resolve(ev, header) >= 0) ? RecordingKind.Events
+                : RecordingKind.Auto;
+            if (kind == RecordingKind.Auto)
+            {
+                return new Layout(kind, [], [], $"cannot tell what the file records from its header (found: {found}); {hint}");
+            }
+        }
+
+        string[] specs = kind switch
+        {
+            RecordingKind.Phase => [o.TimeColumn, o.PhaseColumn],
+            RecordingKind.Positions => [o.TimeColumn, o.XColumn, o.YColumn],
+            _ => [o.EventColumn ?? (header.Length == 1 ? "1" : o.TimeColumn)],
+        };
+        var roles = Roles(kind);
+        var cols = specs.Select(s => Resolve(s, header)).ToArray();
+        var missing = Array.FindIndex(cols, c => c < 0);
+        return missing >= 0
+            ? new Layout(kind, cols, roles, $"no {roles[missing]} column '{specs[missing]}' in the header (found: {found}); {hint}")
+            : new Layout(kind, cols, roles, null);
+    }
+
+    private static string[] Roles(RecordingKind kind) => kind switch
+    {
+        RecordingKind.Phase => PhaseRoles,
+        RecordingKind.Positions => PositionRoles,
+        _ => EventRoles,
+    };
+
+    private static string Describe(Layout layout) =>
+        string.Join(", ", layout.Roles.Select((r, i) => $"column {layout.Columns[i] + 1} as {r}"));
+
+    private static bool LooksLikeDecimalComma(DelimitedTextReader reader, int[] cols)
+    {
+        var commas = 0;
+        foreach (var c in cols)
+        {
+            var f = reader.Field(c);
+            if (f.Contains((byte)'.'))
+            {
+                return false;
+            }
+
+            if (f.Contains((byte)','))
+            {
+                if (f.IndexOf((byte)',') != f.LastIndexOf((byte)',') || !DelimitedTextReader.TryParseNumber(f, true, out _))
+                {
+                    return false;
+                }
+
+                commas++;
+            }
+        }
+
+        return commas > 0;
+    }
+
+    private static string DelimiterName(Delimiter d) => d switch
+    {
+        Delimiter.Comma => "commas",
+        Delimiter.Semicolon => "semicolons",
+        Delimiter.Tab => "tabs",
+        _ => "blanks",
+    };
+
+    private static Diagnostic Binary(string name, int line) => new(Severity.Error, "binary-file",
+        "the file is not text (it holds control bytes or invalid UTF-8); expected a delimited text file (CSV) of samples: export the recording as text",
+        name, line);
 
     private static Diagnostic BadNumber(DelimitedTextReader reader, int col, string name, string what, bool decimalComma)
     {
@@ -215,7 +442,7 @@ public static class RunReader
 
         var hint = !decimalComma && text.Contains(',', StringComparison.Ordinal)
             ? "; if the file uses a decimal comma, pass --decimal-comma"
-            : string.Empty;
+            : "; fix or delete the line (leave the field empty or write NaN to mark a missing value)";
         return new Diagnostic(Severity.Error, "not-a-number",
             $"expected a number for the {what} in column {col + 1}, found '{text}'{hint}",
             name, reader.LineNumber, reader.ColumnOf(col));

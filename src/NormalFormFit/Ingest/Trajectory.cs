@@ -15,7 +15,8 @@ public sealed record Trajectory(double[] Time, double[] Phase, int[] SegmentStar
     public int SegmentEnd(int k) => k + 1 < SegmentStarts.Length ? SegmentStarts[k + 1] : Time.Length;
 
     /// <summary>
-    /// Unwraps a recorded phase so consecutive samples differ by less than π (common practice, no source);
+    /// Unwraps a recorded phase so consecutive samples differ by less than π (common practice, no source), unless
+    /// the recording says it is already unwrapped;
     /// across a gap the turn count is chosen to continue the mean speed. Orients so the phase increases.
     /// O(n). Never modifies the recording.
     /// </summary>
@@ -47,7 +48,7 @@ public sealed record Trajectory(double[] Time, double[] Phase, int[] SegmentStar
             for (var i = s + 1; i < e; i++)
             {
                 var d = raw[i] - raw[i - 1];
-                var jump = Math.Round(d / twoPi);
+                var jump = recording.Unwrapped ? 0.0 : Math.Round(d / twoPi);
                 offset -= jump * twoPi;
                 d -= jump * twoPi;
                 if (Math.Abs(d) > 0.8 * Math.PI)

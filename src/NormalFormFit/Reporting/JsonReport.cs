@@ -170,6 +170,23 @@ public static class JsonReport
         }
 
         RunEvidence(w, r);
+
+        w.WriteString("input_kind", r.InputKind);
+        if (r.Orbit is { } o)
+        {
+            w.WriteStartObject("orbit");
+            Number(w, "centre_x", o.Ellipse.CentreX);
+            Number(w, "centre_y", o.Ellipse.CentreY);
+            Number(w, "semi_major", o.Ellipse.SemiMajor);
+            Number(w, "semi_minor", o.Ellipse.SemiMinor);
+            Number(w, "tilt_deg", o.Ellipse.Tilt * 180 / Math.PI);
+            Number(w, "rms_deviation", o.RmsDeviation);
+            w.WriteBoolean("is_ellipse", o.IsEllipse);
+            w.WriteString("phase", o.IsProtophase ? "protophase" : "ellipse-angle");
+            w.WriteString("sense", o.Sense);
+            w.WriteEndObject();
+        }
+
         w.WriteStartArray("flags");
         foreach (var f in r.Flags)
         {

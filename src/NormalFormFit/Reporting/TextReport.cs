@@ -80,6 +80,20 @@ public static class TextReport
             sb.AppendLine(line.ToString().TrimEnd());
         }
 
+        var orbits = report.Runs.Where(r => r.Orbit is not null).ToList();
+        if (orbits.Count > 0)
+        {
+            sb.AppendLine();
+            sb.AppendLine("Orbits (positions → phase by the fitted ellipse)");
+            foreach (var r in orbits)
+            {
+                var o = r.Orbit!;
+                var e = o.Ellipse;
+                sb.AppendLine(string.Create(Inv,
+                    $"  {G(r.Param, 6)}: centre ({e.CentreX:G5}, {e.CentreY:G5}), semi-axes {e.SemiMajor:G4} × {e.SemiMinor:G4}, tilt {e.Tilt * 180 / Math.PI:F1}°, RMS deviation {o.RmsDeviation:P2}, {o.Sense}{(o.IsProtophase ? "; NOT an ellipse: phase is a protophase, a and b in protophase units" : string.Empty)}"));
+            }
+        }
+
         var diags = report.AllDiagnostics.Where(d => d.Severity != Severity.Info).ToList();
         if (diags.Count > 0)
         {

@@ -1,0 +1,170 @@
+namespace NormalFormFit.Simulation;
+
+/// <summary>
+/// Morris–Lecar model (Morris &amp; Lecar 1981) with the class-I parameter set of Rinzel &amp; Ermentrout (1989,
+/// "Analysis of neural excitability and oscillations", in Koch &amp; Segev, Methods in Neuronal Modeling; values
+/// quoted from memory — the onset used in tests is computed from these values, so the tests do not rely on them):
+/// C V̇ = I − gL(V − VL) − gCa m∞(V)(V − VCa) − gK w(V − VK),  ẇ = φ (w∞(V) − w)/τw(V),
+/// m∞ = ½(1 + tanh((V − V1)/V2)), w∞ = ½(1 + tanh((V − V3)/V4)), τw = 1/cosh((V − V3)/(2V4)).
+/// Units: mV, ms, μA/cm², μF/cm², mS/cm². Class I: oscillations start at a saddle-node on the invariant circle.
+/// </summary>
+public sealed record MorrisLecar
+{
+    /// <summary>Membrane capacitance.</summary>
+    public double C { get; init; } = 20;
+
+    /// <summary>Leak conductance.</summary>
+    public double GL { get; init; } = 2;
+
+    /// <summary>Calcium conductance.</summary>
+    public double GCa { get; init; } = 4;
+
+    /// <summary>Potassium conductance.</summary>
+    public double GK { get; init; } = 8;
+
+    /// <summary>Leak reversal.</summary>
+    public double VL { get; init; } = -60;
+
+    /// <summary>Calcium reversal.</summary>
+    public double VCa { get; init; } = 120;
+
+    /// <summary>Potassium reversal.</summary>
+    public double VK { get; init; } = -84;
+
+    /// <summary>m∞ midpoint.</summary>
+    public double V1 { get; init; } = -1.2;
+
+    /// <summary>m∞ slope.</summary>
+    public double V2 { get; init; } = 18;
+
+    /// <summary>w∞ midpoint.</summary>
+    public double V3 { get; init; } = 12;
+
+    /// <summary>w∞ slope.</summary>
+    public double V4 { get; init; } = 17.4;
+
+    /// <summary>Rate factor φ.</summary>
+    public double Phi { get; init; } = 1.0 / 15;
+
+    /// <summary>The class-I set.</summary>
+    public static MorrisLecar ClassOne { get; } = new();
+
+    private double MInf(double v) => 0.5 * (1 + Math.Tanh((v - V1) / V2));
+
+    private double WInf(double v) => 0.5 * (1 + Math.Tanh((v - V3) / V4));
+
+    /// <summary>Right-hand side (V̇, ẇ) at current I.</summary>
+    public (double DV, double DW) Derivatives(double v, double w, double current)
+    {
+        var dv = (current - (GL * (v - VL)) - (GCa * MInf(v) * (v - VCa)) - (GK * w * (v - VK))) / C;
+        var dw = Phi * (WInf(v) - w) * Math.Cosh((v - V3) / (2 * V4));
+        return (dv, dw);
+    }
+
+    /// <summary>Steady-state current I∞(V) = gL(V−VL) + gCa m∞(V)(V−VCa) + gK w∞(V)(V−VK): the current that holds V at rest.</summary>
+    public double SteadyStateCurrent(double v) =>
+        (GL * (v - VL)) + (GCa * MInf(v) * (v - VCa)) + (GK * WInf(v) * (v - VK));
+
+    /// <summary>dI∞/dV, analytic.</summary>
+    public double SteadyStateSlope(double v)
+    {
+        var m = MInf(v);
+        var w = WInf(v);
+        var dm = 0.5 / V2 / Sq(Math.Cosh((v - V1) / V2));
+        var dw = 0.5 / V4 / Sq(Math.Cosh((v - V3) / V4));
+        return GL + (GCa * ((dm * (v - VCa)) + m)) + (GK * ((dw * (v - VK)) + w));
+    }
+
+    /// <summary>
+    /// The current of the saddle-node of rest states: the first local maximum of I∞(V) (the knee of the steady-state
+    /// I–V curve, where dI∞/dV = 0 and rest and saddle merge). Found by scanning V from −90 mV in 0.1 mV steps for the
+    /// first sign change of dI∞/dV from + to −, then bisection to machine precision. Cost ~10³ evaluations.
+    /// </summary>
+    public (double Current, double Voltage) RestSaddleNode()
+    {
+        var lo = -90.0;
+        for (var v = -90.0; v < 60; v += 0.1)
+        {
+            if (SteadyStateSlope(v) > 0 && SteadyStateSlope(v + 0.1) <= 0)
+            {
+                lo = v;
+                var hi = v + 0.1;
+                for (var k = 0; k < 200 && hi - lo > 1e-13; k++)
+                {
+                    var mid = 0.5 * (lo + hi);
+                    if (SteadyStateSlope(mid) > 0)
+                    {
+                        lo = mid;
+                    }
+                    else
+                    {
+                        hi = mid;
+                    }
+                }
+
+                var vc = 0.5 * (lo + hi);
+                return (SteadyStateCurrent(vc), vc);
+            }
+        }
+
+        throw new InvalidOperationException("I∞(V) has no local maximum: the parameters do not give a class-I (saddle-node) onset");
+    }
+
+    /// <summary>
+    /// Integrates at current <paramref name="current"/> by classical RK4 with step <paramref name="step"/> (ms), records
+    /// every <paramref name="every"/>-th step, from the first upward crossing of V = 0 mV (so the transient is dropped)
+    /// until <paramref name="spikes"/> further spikes, or <paramref name="maxTime"/> ms.
+    /// </summary>
+    public StateTrack Simulate(double current, int spikes, double step = 0.05, int every = 4, double maxTime = 2e5)
+    {
+        double v = -40, w = WInf(-40), t = 0;
+        var times = new List<double>();
+        var vs = new List<double>();
+        var ws = new List<double>();
+        var recording = false;
+        var count = 0;
+        var k = 0;
+        while (t < maxTime)
+        {
+            var (k1v, k1w) = Derivatives(v, w, current);
+            var (k2v, k2w) = Derivatives(v + (0.5 * step * k1v), w + (0.5 * step * k1w), current);
+            var (k3v, k3w) = Derivatives(v + (0.5 * step * k2v), w + (0.5 * step * k2w), current);
+            var (k4v, k4w) = Derivatives(v + (step * k3v), w + (step * k3w), current);
+            var vNew = v + (step / 6 * (k1v + (2 * k2v) + (2 * k3v) + k4v));
+            w += step / 6 * (k1w + (2 * k2w) + (2 * k3w) + k4w);
+            t += step;
+            if (v < 0 && vNew >= 0)
+            {
+                if (recording)
+                {
+                    count++;
+                }
+
+                recording = true;
+            }
+
+            v = vNew;
+            if (recording && k++ % every == 0)
+            {
+                times.Add(t);
+                vs.Add(v);
+                ws.Add(w);
+            }
+
+            if (count > spikes)
+            {
+                break;
+            }
+        }
+
+        return new StateTrack([.. times], [.. vs], [.. ws]);
+    }
+
+    private static double Sq(double x) => x * x;
+}
+
+/// <summary>A 2-D state trajectory: time, voltage, recovery variable.</summary>
+/// <param name="Time">Times (ms).</param>
+/// <param name="V">Membrane voltage (mV).</param>
+/// <param name="W">Recovery variable (dimensionless).</param>
+public sealed record StateTrack(double[] Time, double[] V, double[] W);

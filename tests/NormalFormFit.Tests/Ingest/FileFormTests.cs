@@ -1,0 +1,86 @@
+using System.Text;
+using NormalFormFit.Ingest;
+
+namespace NormalFormFit.Tests.Ingest;
+
+/// <summary>The same samples written in the forms users export must read to the same recording.</summary>
+public class FileFormTests
+{
+    private static Loaded<RunRecording> Read(string text, RunReadOptions? options = null) =>
+        RunReader.ReadRecording(new MemoryStream(Encoding.UTF8.GetBytes(text)), "f.csv", options ?? RunReadOptions.Default);
+
+    public static TheoryData<string, string> PhaseForms => new()
+    {
+        { "comma", "t,theta\n0,0.5\n0.25,1.5\n0.5,-3\n" },
+        { "semicolon, decimal comma detected", "t;theta\n0;0,5\n0,25;1,5\n0,5;-3\n" },
+        { "tab, CRLF, BOM", "\uFEFFt\ttheta\r\n0\t0.5\r\n0.25\t1.5\r\n0.5\t-3\r\n" },
+        { "whitespace, comments, extra column", "# lab export\n  t   theta  gain\n0 0.5 1\n# pause\n0.25 1.5 1\n0.5  -3 1\n" },
+        { "no header", "0,0.5\n0.25,1.5\n0.5,-3\n" },
+        { "quoted header, reordered columns", "\"theta\",\"t\"\n0.5,0\n1.5,0.25\n-3,0.5\n" },
+    };
+
+    [Theory]
+    [MemberData(nameof(PhaseForms))]
+    public void PhaseFile_InEveryDelimitedForm_ReadsToTheSameSamples(string form, string text)
+    {
+        var r = Read(text);
+        Assert.True(r.Succeeded, form + ": " + string.Join("; ", r.Diagnostics));
+        Assert.Equal(RecordingKind.Phase, r.Value!.Kind);
+        Assert.Equal([0, 0.25, 0.5], r.Value.Phase!.Time);
+        Assert.Equal([0.5, 1.5, -3], r.Value.Phase.Phase);
+    }
+
+    [Fact]
+    public void PhaseInDegreesAndTurns_IsConvertedToRadians()
+    {
+        var deg = Read("t,theta\n0,90\n1,180\n", new RunReadOptions { PhaseUnit = PhaseUnit.Degrees }).Value!.Phase!.Phase;
+        var turns = Read("t,theta\n0,0.25\n1,0.5\n", new RunReadOptions { PhaseUnit = PhaseUnit.Turns }).Value!.Phase!.Phase;
+        Assert.Equal(Math.PI / 2, deg[0], 15);
+        Assert.Equal(Math.PI, deg[1], 15);
+        Assert.Equal(Math.PI / 2, turns[0], 15);
+        Assert.Equal(Math.PI, turns[1], 15);
+    }
+
+    [Fact]
+    public void UnwrappedPhase_WithStepsAboveHalfATurn_IsKeptAsRecordedWhenSaidToBeUnwrapped()
+    {
+        var text = "t,theta\n0,0\n1,4\n2,8\n3,12\n";
+        var asWrapped = Trajectory.FromRecording(Read(text).Value!.Phase!);
+        var asUnwrapped = Trajectory.FromRecording(Read(text, new RunReadOptions { PhaseUnwrapped = true }).Value!.Phase!);
+        Assert.Equal([0, 4, 8, 12], asUnwrapped.Phase);
+        Assert.NotEqual(12, asWrapped.Phase[^1], 6);
+    }
+
+    [Fact]
+    public void Kind_IsInferredFromTheColumns()
+    {
+        Assert.Equal(RecordingKind.Positions, Read("t,x,y\n0,1,2\n").Value!.Kind);
+        Assert.Equal(RecordingKind.Events, Read("spike_time\n0.1\n0.7\n").Value!.Kind);
+        Assert.Equal(RecordingKind.Events, Read("0.1\n0.7\n").Value!.Kind);
+        Assert.Equal(RecordingKind.Positions, Read("frame_t,cx,cy\n0,1,2\n", new RunReadOptions { TimeColumn = "frame_t", XColumn = "cx", YColumn = "cy" }).Value!.Kind);
+        Assert.Equal([0.1, 0.7], Read("t,channel\n0.1,3\n0.7,3\n", new RunReadOptions { Kind = RecordingKind.Events }).Value!.Events!.Times);
+    }
+
+    [Fact]
+    public void MissingValuesAndLongPauses_SplitTheRunIntoSegments()
+    {
+        var sb = new StringBuilder("t,x,y\n");
+        for (var i = 0; i < 100; i++)
+        {
+            var t = i < 60 ? i * 0.01 : 2 + (i * 0.01);   // a pause of ~200 steps after sample 59
+            sb.Append(i == 30 ? "0.3,NaN,1\n" : FormattableString.Invariant($"{t},{Math.Cos(t)},{Math.Sin(t)}\n"));
+        }
+
+        var r = Read(sb.ToString());
+        Assert.Equal([0, 30, 59], r.Value!.Positions!.SegmentStarts);
+        Assert.Contains(r.Diagnostics, d => d.Code == "large-gaps" && d.Severity == Severity.Warning);
+    }
+
+    [Fact]
+    public void ExplicitDecimalComma_ReadsCommaDecimals()
+    {
+        var r = Read("t;theta\n0;0,5\n1;1,5\n", new RunReadOptions { DecimalComma = true });
+        Assert.Equal([0.5, 1.5], r.Value!.Phase!.Phase);
+        Assert.DoesNotContain(r.Diagnostics, d => d.Code == "decimal-comma");
+    }
+}
