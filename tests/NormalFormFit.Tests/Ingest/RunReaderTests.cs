@@ -50,7 +50,7 @@ public class RunReaderTests
     [InlineData("t,theta\n0,0.1\n1,abc\n", "not-a-number", 3)]
     [InlineData("t,theta\n0,0.1\n0,0.2\n", "time-not-increasing", 3)]
     [InlineData("t,theta\n1,0.1\n0.5,0.2\n", "time-not-increasing", 3)]
-    [InlineData("t,theta\n0,0.1\n1\n", "too-few-fields", 3)]
+    [InlineData("t,theta\n0,0.1\n1\n", "wrong-field-count", 3)]
     [InlineData("time,angle\n0,0.1\n", "missing-column", 1)]
     public void Read_BadContent_GivesOneErrorWithLine(string text, string code, int? line)
     {
