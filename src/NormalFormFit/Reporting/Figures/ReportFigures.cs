@@ -351,7 +351,7 @@ public static class ReportFigures
         bar.Color = colour;
         bar.LineWidth = 4;
         var dot = plot.Add.Marker(e.Value, y, shape, 12, colour);
-        dot.LegendText = string.Create(Inv, $"{label}: {G(e.Value, 6)} [{Bound(e.Ci95.Low)}, {Bound(e.Ci95.High)}]");
+        dot.LegendText = $"{label}: {ReportNumbers.WithError(e.Value, e.StandardError)}, 95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}";
     }
 
     private static Plot NewPlot(string title, string x, string y)
@@ -408,6 +408,4 @@ public static class ReportFigures
     private static string UnitsOr(AnalysisReport report, string fallback) => report.ParamUnits is { Length: > 0 } u ? u : fallback;
 
     private static string G(double x, int digits) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
-
-    private static string Bound(double x) => double.IsFinite(x) ? x.ToString("G6", Inv) : (x > 0 ? "+∞" : "−∞");
 }

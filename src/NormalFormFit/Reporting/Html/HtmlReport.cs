@@ -5,7 +5,7 @@ using System.Text.RegularExpressions;
 using NormalFormFit.Analysis;
 using NormalFormFit.Onset;
 using NormalFormFit.Reporting.Figures;
-using static NormalFormFit.Reporting.Html.ReportNumbers;
+using static NormalFormFit.Reporting.ReportNumbers;
 
 namespace NormalFormFit.Reporting.Html;
 
@@ -113,8 +113,8 @@ public static partial class HtmlReport
         {
             var kind = s.Verdict == "saddle-node-on-circle" ? "good" : "unknown";
             sb.Append("<p class=\"verdict ").Append(kind).Append("\"><strong>Kind of onset: ").Append(E(s.Verdict)).Append("</strong>. ")
-              .Append(E(s.Evidence)).Append(".</p>\n");
-            sb.Append(string.Create(Inv, $"<p>Scaling T ∝ |μ − μc|<sup>−β</sup>: β = {WithError(s.Exponent.Value, s.Exponent.StandardError)}, 95% interval [{Bound(s.Ci95.Low)}, {Bound(s.Ci95.High)}], from {s.Runs} runs (a saddle-node on the circle gives β = ½).</p>\n"));
+              .Append(E(Capitalise(s.Evidence))).Append(".</p>\n");
+            sb.Append(string.Create(Inv, $"<p>Scaling T ∝ |μ − μc|<sup>−β</sup>: β = {WithError(s.Exponent.Value, s.Exponent.StandardError)}, 95% interval {Interval(s.Ci95, s.Exponent.StandardError)} (a saddle-node on the circle gives β = ½).</p>\n"));
         }
         else
         {
@@ -141,7 +141,7 @@ public static partial class HtmlReport
         }
 
         sb.Append("<td class=\"num\">").Append(WithError(e.Value, e.StandardError)).Append(units).Append("</td>")
-          .Append("<td class=\"num\">[").Append(Bound(e.Ci95.Low)).Append(", ").Append(Bound(e.Ci95.High)).Append(']').Append(units).Append("</td>")
+          .Append("<td class=\"num\">").Append(Interval(e.Ci95, e.StandardError)).Append(units).Append("</td>")
           .Append("<td class=\"num\">").Append(e.Runs.ToString(Inv)).Append("</td>")
           .Append("<td>").Append(e.Trend is { } t ? (t.Degree == 1 ? "straight line" : "degree " + t.Degree.ToString(Inv)) : "–").Append("</td></tr>\n");
     }
@@ -275,6 +275,8 @@ public static partial class HtmlReport
     }
 
     private static string E(string s) => WebUtility.HtmlEncode(s);
+
+    private static string Capitalise(string s) => s.Length == 0 ? s : char.ToUpperInvariant(s[0]) + s[1..];
 
     private const string Style = """
         :root{--ink:#1e1e24;--muted:#5a5a64;--rule:#d8d8de;--field:#1f5aa6;--period:#b86e12;--good:#2f6f3e;--bad:#a3322a;--warn:#8a5a00}

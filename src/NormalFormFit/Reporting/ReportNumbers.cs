@@ -1,8 +1,8 @@
 using System.Globalization;
 
-namespace NormalFormFit.Reporting.Html;
+namespace NormalFormFit.Reporting;
 
-/// <summary>Number formatting shared by the HTML page: invariant culture, en dash for a missing value.</summary>
+/// <summary>Number formatting of the HTML page and the figures: invariant culture, en dash for a missing value.</summary>
 internal static class ReportNumbers
 {
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
@@ -29,8 +29,18 @@ internal static class ReportNumbers
             return G(value);
         }
 
-        var decimals = Math.Clamp(1 - (int)Math.Floor(Math.Log10(se)), 0, 12);
-        var fmt = "F" + decimals.ToString(Inv);
+        var fmt = "F" + Decimals(se).ToString(Inv);
         return value.ToString(fmt, Inv) + " ± " + se.ToString(fmt, Inv);
     }
+
+    /// <summary>An interval [low, high] with as many decimals as <see cref="WithError"/> gives its value.</summary>
+    public static string Interval(Interval ci, double se)
+    {
+        string B(double x) => !double.IsFinite(x) ? Bound(x)
+            : se > 0 && double.IsFinite(se) ? x.ToString("F" + Decimals(se).ToString(Inv), Inv) : G(x);
+        return "[" + B(ci.Low) + ", " + B(ci.High) + "]";
+    }
+
+    /// <summary>Decimals that show the second significant digit of <paramref name="se"/>.</summary>
+    private static int Decimals(double se) => Math.Clamp(1 - (int)Math.Floor(Math.Log10(se)), 0, 12);
 }
