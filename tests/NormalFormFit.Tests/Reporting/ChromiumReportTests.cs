@@ -66,7 +66,7 @@ public sealed class ChromiumFactAttribute : FactAttribute
     }
 }
 
-[Collection(DemoFolderCollection.Name)]
+[Collection(DemoFolderGroup.Name)]
 public class ChromiumReportTests(DemoFolder demo)
 {
     [ChromiumFact]

@@ -40,12 +40,12 @@ public sealed class DemoFolder : IDisposable
 }
 
 [CollectionDefinition(Name)]
-public sealed class DemoFolderCollection : ICollectionFixture<DemoFolder>
+public sealed class DemoFolderGroup : ICollectionFixture<DemoFolder>
 {
     public const string Name = "demo report folder";
 }
 
-[Collection(DemoFolderCollection.Name)]
+[Collection(DemoFolderGroup.Name)]
 public class ReportFolderTests(DemoFolder demo)
 {
     [Fact]
