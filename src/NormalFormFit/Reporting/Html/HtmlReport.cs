@@ -114,7 +114,6 @@ public static partial class HtmlReport
             var kind = s.Verdict == "saddle-node-on-circle" ? "good" : "unknown";
             sb.Append("<p class=\"verdict ").Append(kind).Append("\"><strong>Kind of onset: ").Append(E(s.Verdict)).Append("</strong>. ")
               .Append(E(Capitalise(s.Evidence))).Append(".</p>\n");
-            sb.Append(string.Create(Inv, $"<p>Scaling T ∝ |μ − μc|<sup>−β</sup>: β = {WithError(s.Exponent.Value, s.Exponent.StandardError)}, 95% interval {Interval(s.Ci95, s.Exponent.StandardError)} (a saddle-node on the circle gives β = ½).</p>\n"));
         }
         else
         {
@@ -163,7 +162,7 @@ public static partial class HtmlReport
     private static void Runs(StringBuilder sb, AnalysisReport report)
     {
         sb.Append("<section id=\"runs\"><h2>Runs</h2>\n<div class=\"scroll\"><table class=\"runs\">\n<thead><tr>")
-          .Append("<th>file</th><th>μ</th><th>θ* (rad)</th><th>a</th><th>b</th><th>T measured</th><th>π/√(ab)</th><th>∮dθ/θ̇</th><th>revs</th><th>flags</th>")
+          .Append("<th>run</th><th>μ</th><th>θ* (rad)</th><th>a</th><th>b</th><th>T measured</th><th>π/√(ab)</th><th>∮dθ/θ̇</th><th>revs</th><th>flags</th>")
           .Append("</tr></thead>\n<tbody>\n");
         foreach (var r in report.Runs.OrderBy(r => r.Param))
         {
@@ -301,6 +300,9 @@ public static partial class HtmlReport
         figure svg{display:block;width:100%;height:auto;border:1px solid var(--rule)}
         figcaption{color:var(--muted);font-size:14px;margin-top:6px}
         .scroll{overflow-x:auto}
+        table.runs{font-size:13px}
+        table.runs th,table.runs td{padding:4px 6px}
+        table.runs td:first-child{white-space:nowrap}
         .note{color:var(--muted);font-size:14px}
         ul.diags{padding-left:0;list-style:none}
         ul.diags li{margin:4px 0;padding-left:8px;border-left:4px solid var(--rule)}
