@@ -16,7 +16,8 @@ public sealed class DemoReport
 
     private static readonly Lazy<AnalysisReport> Shared = new(() =>
         SimulatedSet.Analyze(BuiltInModels.Rotor, Mus, new SimulationOptions { Revolutions = 5, SamplingInterval = 0.01, MeasurementNoise = 0.01, Seed = 5 })
-        with { ParamUnits = "mA" });
+        with
+        { ParamUnits = "mA" });
 
     private static readonly Lazy<IReadOnlyList<Figure>> SharedFigures = new(() => ReportFigures.Build(Shared.Value));
 
