@@ -10,6 +10,7 @@ internal static class AnalyzeCommand
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
         var manifest = new Argument<string>("manifest") { Description = "CSV with header 'file,param' naming one run file per parameter value" };
+        var outDir = new Option<string?>("--out") { Description = "write the full report to folder DIR: report.html, figures (PNG and SVG), runs.csv, field.csv, report.json" };
         var json = new Option<string?>("--json") { Description = "also write the JSON report to FILE ('-' for standard output, which then carries only the JSON)" };
         var timeCol = new Option<string>("--time-column") { Description = "time column: header name or 1-based position", DefaultValueFactory = _ => "t" };
         var phaseCol = new Option<string>("--phase-column") { Description = "phase column: header name or 1-based position", DefaultValueFactory = _ => "theta" };
@@ -30,7 +31,7 @@ internal static class AnalyzeCommand
         var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
         var cmd = new Command("analyze", "Find the onset from a set of runs: bottleneck normal form, periods, scaling")
         {
-            manifest, json, timeCol, phaseCol, unit, decimalComma, kind, xCol, yCol, eventCol, delimiter, yDown, unwrapped, threads, quiet, verbose,
+            manifest, outDir, json, timeCol, phaseCol, unit, decimalComma, kind, xCol, yCol, eventCol, delimiter, yDown, unwrapped, threads, quiet, verbose,
         };
         cmd.SetAction(pr =>
         {
@@ -70,14 +71,22 @@ internal static class AnalyzeCommand
                 },
                 Parallelism = Math.Max(1, pr.GetValue(threads)),
             };
-            return Execute(pr.GetValue(manifest)!, pr.GetValue(json), pr.GetValue(quiet), options, stdout, stderr);
+            return Execute(pr.GetValue(manifest)!, pr.GetValue(json), pr.GetValue(quiet), options, stdout, stderr, pr.GetValue(outDir));
         });
         return cmd;
     }
 
-    internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr)
+    internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr, string? outDir = null)
     {
-        var result = ManifestAnalyzer.Analyze(manifestPath, options);
+        if (outDir is not null && ReportFolder.Check(outDir) is { } why)
+        {
+            stderr.WriteLine($"nffit: {outDir}: error: cannot write the report there: {why}");
+            return ExitCodes.BadInput;
+        }
+
+        var progress = ProgressLine.For(stderr, quiet || jsonPath == "-");
+        var result = ManifestAnalyzer.Analyze(manifestPath, options, progress.Counter("runs analysed"));
+        progress.Clear();
         if (result.Value is null)
         {
             var errors = result.Diagnostics.Where(d => d.Severity == Severity.Error).ToList();
@@ -90,6 +99,21 @@ internal static class AnalyzeCommand
         }
 
         var report = result.Value;
+        if (outDir is not null)
+        {
+            try
+            {
+                ReportFolder.Write(outDir, report, Path.GetFileName(manifestPath), progress.Report);
+                progress.Clear();
+            }
+            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+            {
+                progress.Clear();
+                stderr.WriteLine($"nffit: {outDir}: error: cannot write the report ({e.Message}); check that the folder is writable");
+                return ExitCodes.BadInput;
+            }
+        }
+
         if (jsonPath == "-")
         {
             using var stdoutStream = new MemoryStream();

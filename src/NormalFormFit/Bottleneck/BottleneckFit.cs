@@ -15,6 +15,9 @@ namespace NormalFormFit.Bottleneck;
 /// </param>
 public sealed record BottleneckFit(Estimate Phase, Estimate A, Estimate B, double HalfWidth, int Samples, double ResidualRms, double QuarticBias)
 {
+    /// <summary>Binned residuals of the fit across its window, for judging the fit by eye (empty when not computed).</summary>
+    public IReadOnlyList<ResidualBin> Residuals { get; init; } = [];
+
     /// <summary>Width of the bottleneck, √(a/b) (radians); NaN when a ≤ 0.</summary>
     public double Width => A.Value > 0 && B.Value > 0 ? Math.Sqrt(A.Value / B.Value) : double.NaN;
 

@@ -24,6 +24,30 @@ public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate On
 
     /// <summary>Whether the minimum speed a extrapolates to zero (null until the runs are combined).</summary>
     public MinimumSpeedTrend? MinimumSpeed { get; init; }
+
+    /// <summary>
+    /// The fitted curve: log T = c₀ − β·log d + Σₖ κₖdᵏ with d = |μ − μc| as coefficients [c₀, β, κ₁, …]
+    /// (empty when not recorded).
+    /// </summary>
+    public IReadOnlyList<double> LogModel { get; init; } = [];
+
+    /// <summary>The fitted period at <paramref name="mu"/> (NaN on the wrong side of μc or without a model).</summary>
+    public double PeriodAt(double mu)
+    {
+        if (LogModel.Count < 2)
+        {
+            return double.NaN;
+        }
+
+        var d = Math.Abs(mu - Onset.Value);
+        var y = LogModel[0] - (LogModel[1] * Math.Log(d));
+        for (var k = 2; k < LogModel.Count; k++)
+        {
+            y += LogModel[k] * Math.Pow(d, k - 1);
+        }
+
+        return d > 0 ? Math.Exp(y) : double.NaN;
+    }
 }
 
 /// <summary>
@@ -75,7 +99,7 @@ public static class ScalingFit
         var beta = new Estimate(f.Beta, f.BetaSe);
         var ci = new Interval(f.Beta - (q * f.BetaSe), f.Beta + (q * f.BetaSe));
         var (verdict, evidence) = Judge(beta, ci, pts.Length);
-        return new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), f.Kappa, pts.Length, verdict, evidence);
+        return new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), f.Kappa, pts.Length, verdict, evidence) { LogModel = f.Coefficients };
     }
 
     private static (string Verdict, string Evidence) Judge(Estimate beta, Interval ci, int runs)
@@ -94,7 +118,10 @@ public static class ScalingFit
             : ("undetermined", text + "; excludes β = ½: not the square-root law of a saddle-node on the circle, or runs too far from onset");
     }
 
-    private readonly record struct Solution(double MuC, double Beta, double BetaSe, double MuCSe, double Kappa, int Dof, double Aicc);
+    private readonly record struct Solution(double MuC, double Beta, double BetaSe, double MuCSe, double Kappa, int Dof, double Aicc)
+    {
+        public double[] Coefficients { get; init; } = [];
+    }
 
     private static Solution? FitWith(PeriodPoint[] pts, int side, double edge, double span, int corrections)
     {
@@ -195,7 +222,7 @@ public static class ScalingFit
         var aicc = n - k2 - 1 > 0
             ? (n * Math.Log(Math.Max(chi2, 1e-300) / n)) + (2 * k2) + (2.0 * k2 * (k2 + 1) / (n - k2 - 1))
             : double.PositiveInfinity;
-        return new Solution(muc, coef[1], Math.Sqrt(cov[1, 1]), Math.Sqrt(cov[p - 1, p - 1]), corrections > 0 ? coef[2] : 0, dof, aicc);
+        return new Solution(muc, coef[1], Math.Sqrt(cov[1, 1]), Math.Sqrt(cov[p - 1, p - 1]), corrections > 0 ? coef[2] : 0, dof, aicc) { Coefficients = coef };
     }
 
     // Weighted linear least squares of log T on [1, −log d, (d)] for a given μc; returns χ².

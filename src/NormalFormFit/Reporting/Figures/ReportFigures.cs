@@ -1,0 +1,411 @@
+using System.Globalization;
+using MathNet.Numerics.Distributions;
+using NormalFormFit.Analysis;
+using NormalFormFit.Field;
+using NormalFormFit.Onset;
+using ScottPlot;
+
+namespace NormalFormFit.Reporting.Figures;
+
+/// <summary>One figure of the report: a stable file stem, a title, a caption, and the plot that draws it.</summary>
+/// <param name="Name">File stem, e.g. <c>field</c> (written as field.png and field.svg).</param>
+/// <param name="Title">Heading.</param>
+/// <param name="Caption">What is drawn and how to read it.</param>
+/// <param name="Plot">The plot.</param>
+public sealed record Figure(string Name, string Title, string Caption, Plot Plot)
+{
+    /// <summary>Pixel width of the rendered figure.</summary>
+    public int Width { get; init; } = ReportFigures.DefaultWidth;
+
+    /// <summary>Pixel height of the rendered figure.</summary>
+    public int Height { get; init; } = ReportFigures.DefaultHeight;
+
+    /// <summary>PNG bytes.</summary>
+    public byte[] Png() => Plot.GetImageBytes(Width, Height, ImageFormat.Png);
+
+    /// <summary>A standalone SVG document.</summary>
+    /// <remarks>A viewBox is added so the drawing scales with its container (an HTML page, a slide).</remarks>
+    public string Svg()
+    {
+        var svg = Plot.GetSvgXml(Width, Height);
+        var at = svg.IndexOf("<svg ", StringComparison.Ordinal);
+        return at < 0 || svg.Contains("viewBox", StringComparison.Ordinal)
+            ? svg
+            : svg.Insert(at + 5, string.Create(CultureInfo.InvariantCulture, $"viewBox=\"0 0 {Width} {Height}\" "));
+    }
+}
+
+/// <summary>
+/// The figures people judge the fits by: θ̇(θ) with bands and parabolas, both onset trends, the scaling law on
+/// log–log axes, measured against predicted periods, and the residuals of the bottleneck fits.
+/// </summary>
+public static class ReportFigures
+{
+    /// <summary>Default width in pixels.</summary>
+    public const int DefaultWidth = 960;
+
+    /// <summary>Default height in pixels.</summary>
+    public const int DefaultHeight = 600;
+
+    private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
+
+    /// <summary>All figures for the report, in reading order. Figures whose data are missing are left out.</summary>
+    public static IReadOnlyList<Figure> Build(AnalysisReport report)
+    {
+        ArgumentNullException.ThrowIfNull(report);
+        FigureFonts.Register();
+        var figures = new List<Figure?>
+        {
+            Field(report),
+            Trend(report, bottleneckRoute: true),
+            Trend(report, bottleneckRoute: false),
+            ScalingLaw(report),
+            Periods(report),
+            Residuals(report),
+        };
+        return [.. figures.OfType<Figure>()];
+    }
+
+    /// <summary>Label of the control parameter with its units.</summary>
+    internal static string ParamLabel(AnalysisReport report) =>
+        report.ParamUnits is { Length: > 0 } u ? $"control parameter μ ({u})" : "control parameter μ";
+
+    /// <summary>Figure 1: θ̇(θ) of every run, 95% band, fitted parabola over the fit window.</summary>
+    internal static Figure? Field(AnalysisReport report)
+    {
+        var runs = Ordered(report).Where(r => r.Field is not null).ToList();
+        if (runs.Count == 0)
+        {
+            return null;
+        }
+
+        var plot = NewPlot("Phase velocity of every run", "phase θ (rad)", "dθ/dt (rad per time unit)");
+
+        // Centre the view on the runs' bottleneck (circular mean of θ*), so the slow part sits mid-plot unbroken.
+        var stars = runs.Where(r => r.Bottleneck is not null).Select(r => r.Bottleneck!.Phase.Value).ToList();
+        var centre = stars.Count > 0 ? Math.Atan2(stars.Sum(Math.Sin), stars.Sum(Math.Cos)) : Math.PI;
+        for (var i = 0; i < runs.Count; i++)
+        {
+            var r = runs[i];
+            var f = r.Field!;
+            var colour = FigurePalette.Run(i, runs.Count);
+            var pts = Enumerable.Range(0, f.Centres.Length)
+                .Where(j => double.IsFinite(f.Velocity[j]))
+                .Select(j => (X: centre + RevolutionBlocks.WrapSigned(f.Centres[j] - centre), V: f.Velocity[j], S: f.StandardError[j]))
+                .OrderBy(p => p.X)
+                .ToArray();
+            var xs = pts.Select(p => p.X).ToArray();
+            var band = 1.96; // pointwise 95%: the bootstrap errors are close to normal with many revolutions.
+            var lo = pts.Select(p => p.V - (band * Finite(p.S))).ToArray();
+            var hi = pts.Select(p => p.V + (band * Finite(p.S))).ToArray();
+            var fill = plot.Add.FillY(xs, lo, hi);
+            fill.FillColor = colour.WithAlpha(0.22);
+            fill.LineWidth = 0;
+            var line = plot.Add.ScatterLine(xs, pts.Select(p => p.V).ToArray(), colour);
+            line.LineWidth = 1.6f;
+            line.LegendText = "μ = " + G(r.Param, 6);
+        }
+
+        // Parabolas last, so they are drawn over every field and listed last in the legend.
+        for (var i = 0; i < runs.Count; i++)
+        {
+            if (runs[i].Bottleneck is { } b && double.IsFinite(b.A.Value) && double.IsFinite(b.B.Value))
+            {
+                var mid = centre + RevolutionBlocks.WrapSigned(b.Phase.Value - centre);
+                var px = Grid(mid - b.HalfWidth, mid + b.HalfWidth, 41);
+                var parabola = plot.Add.ScatterLine(px, px.Select(x => b.A.Value + (b.B.Value * (x - mid) * (x - mid))).ToArray(), FigurePalette.Ink);
+                parabola.LineWidth = 2.2f;
+                parabola.LinePattern = LinePattern.Dashed;
+                if (i == 0)
+                {
+                    parabola.LegendText = "fitted a + b(θ−θ*)²";
+                }
+            }
+        }
+
+        plot.ShowLegend(Edge.Right);
+        return new Figure("field", "Phase velocity θ̇(θ) and the bottleneck fits",
+            "Each run's reconstructed phase velocity (line) with its pointwise 95% band from the block bootstrap over whole " +
+            "revolutions (shaded), coloured from dark (lowest μ) to light (highest μ). Black dashes: the fitted normal form " +
+            "a + b(θ−θ*)² over the window used for the fit. The phase axis is centred on the bottleneck.", plot);
+    }
+
+    /// <summary>Figures 2 and 3: a (or T⁻²) against μ, the fitted trend with its 95% band, both onset estimates.</summary>
+    internal static Figure? Trend(AnalysisReport report, bool bottleneckRoute)
+    {
+        var estimate = bottleneckRoute ? report.FromBottleneck : report.FromPeriod;
+        var pts = Ordered(report)
+            .Select(r => bottleneckRoute
+                ? (r.IsTurning && r.Bottleneck is { } b ? (Mu: r.Param, Y: b.A.Value, S: b.A.StandardError) : (Mu: r.Param, Y: double.NaN, S: double.NaN))
+                : (r.IsTurning && r.Period is { } p && p.Measured.Value > 0
+                    ? (Mu: r.Param, Y: 1 / (p.Measured.Value * p.Measured.Value), S: 2 * p.Measured.StandardError / Math.Pow(p.Measured.Value, 3))
+                    : (Mu: r.Param, Y: double.NaN, S: double.NaN)))
+            .Where(p => double.IsFinite(p.Y))
+            .ToArray();
+        if (pts.Length == 0)
+        {
+            return null;
+        }
+
+        var colour = bottleneckRoute ? FigurePalette.Field : FigurePalette.Period;
+        var plot = bottleneckRoute
+            ? NewPlot("Minimum speed a against the control parameter", ParamLabel(report), "a (rad per time unit)")
+            : NewPlot("Inverse squared period against the control parameter", ParamLabel(report), "T⁻² (per time unit²)");
+
+        // x range: the data and both onset intervals where finite.
+        var xs = pts.Select(p => p.Mu).ToList();
+        foreach (var e in new[] { report.FromBottleneck, report.FromPeriod }.Where(e => e.IsAvailable))
+        {
+            xs.Add(e.Value);
+            xs.AddRange(new[] { e.Ci95.Low, e.Ci95.High }.Where(double.IsFinite));
+        }
+
+        // Never let a wide onset interval squash the data: show at most one data span beyond the runs.
+        var dataSpan = Math.Max(pts.Max(p => p.Mu) - pts.Min(p => p.Mu), 1e-12);
+        var xMin = Math.Max(xs.Min(), pts.Min(p => p.Mu) - dataSpan);
+        var xMax = Math.Min(xs.Max(), pts.Max(p => p.Mu) + dataSpan);
+        var pad = 0.04 * Math.Max(xMax - xMin, 1e-12);
+
+        if (estimate.Trend is { } trend)
+        {
+            var q = trend.Scaled && trend.DegreesOfFreedom > 0 ? StudentT.InvCDF(0, 1, trend.DegreesOfFreedom, 0.975) : 1.959964;
+            var gx = Grid(xMin - pad, xMax + pad, 200);
+            var fill = plot.Add.FillY(gx, gx.Select(x => trend.Evaluate(x) - (q * Math.Sqrt(trend.Variance(x)))).ToArray(),
+                gx.Select(x => trend.Evaluate(x) + (q * Math.Sqrt(trend.Variance(x)))).ToArray());
+            fill.FillColor = colour.WithAlpha(0.18);
+            fill.LineWidth = 0;
+            fill.LegendText = "95% band of the trend";
+            var line = plot.Add.ScatterLine(gx, gx.Select(trend.Evaluate).ToArray(), colour);
+            line.LineWidth = 2;
+            line.LegendText = trend.Degree == 1 ? "weighted straight line" : $"weighted polynomial, degree {trend.Degree}";
+        }
+
+        var zero = plot.Add.HorizontalLine(0, 1, FigurePalette.Reference, LinePattern.Solid);
+        zero.LineWidth = 1;
+
+        var bars = plot.Add.ErrorBar(pts.Select(p => p.Mu).ToArray(), pts.Select(p => p.Y).ToArray(), pts.Select(p => Finite(p.S)).ToArray());
+        bars.Color = FigurePalette.Ink;
+        var marks = plot.Add.ScatterPoints(pts.Select(p => p.Mu).ToArray(), pts.Select(p => p.Y).ToArray(), FigurePalette.Ink);
+        marks.MarkerSize = 8;
+        marks.LegendText = bottleneckRoute ? "a per run (± 1 s.e.)" : "1/T² per run (± 1 s.e.)";
+
+        // Both onsets, each as a marker on y = 0 with its 95% interval: the own route solid, the other for comparison.
+        var yMax = pts.Max(p => p.Y + Finite(p.S));
+        var yMin = Math.Min(0, pts.Min(p => p.Y - Finite(p.S)));
+        var span = Math.Max(yMax - yMin, 1e-12);
+        OnsetMarker(plot, report.FromBottleneck, FigurePalette.Field, MarkerShape.FilledCircle, 0.04 * span, xMin - pad, xMax + pad, "onset from a → 0");
+        OnsetMarker(plot, report.FromPeriod, FigurePalette.Period, MarkerShape.FilledSquare, -0.04 * span, xMin - pad, xMax + pad, "onset from T⁻² → 0");
+
+        plot.Axes.SetLimitsX(xMin - pad, xMax + pad);
+        plot.ShowLegend(Alignment.UpperLeft);
+        return bottleneckRoute
+            ? new Figure("trend-a", "Onset from the minimum speed (a → 0)",
+                "The minimum speed a of each run (± 1 standard error) against μ, the weighted trend with its 95% band, and where " +
+                "it crosses zero: the onset by the field route (blue circle, 95% interval by Fieller's theorem as a bar). The onset by " +
+                "the period route is drawn below it (amber square) for comparison.", plot)
+            : new Figure("trend-period", "Onset from the periods (T⁻² → 0)",
+                "1/T² of each run (± 1 standard error) against μ, the weighted trend with its 95% band, and its zero: the onset by the " +
+                "period route (amber square with its 95% interval). The field-route onset (blue circle) is shown for comparison.", plot);
+    }
+
+    /// <summary>Figure 4: log T against log(μ − μc) with the fitted law and the reference slope −½.</summary>
+    internal static Figure? ScalingLaw(AnalysisReport report)
+    {
+        if (report.Scaling is not { } s || !double.IsFinite(s.Onset.Value))
+        {
+            return null;
+        }
+
+        var pts = Ordered(report)
+            .Where(r => r.IsTurning && r.Period is { } p && p.Measured.Value > 0 && Math.Abs(r.Param - s.Onset.Value) > 0)
+            .Select(r => (D: Math.Abs(r.Param - s.Onset.Value), T: r.Period!.Measured.Value, S: r.Period.Measured.StandardError))
+            .ToArray();
+        if (pts.Length == 0)
+        {
+            return null;
+        }
+
+        var plot = NewPlot("Scaling of the period near onset", $"|μ − μc| ({UnitsOr(report, "parameter units")}, log scale)", "period T (time units, log scale)");
+        var lx = pts.Select(p => Math.Log10(p.D)).ToArray();
+        var ly = pts.Select(p => Math.Log10(p.T)).ToArray();
+        var ls = pts.Select(p => Finite(p.S) / (p.T * Math.Log(10))).ToArray();
+        var gx = Grid(lx.Min() - 0.1, lx.Max() + 0.1, 100);
+
+        // Reference slope −½ through the weighted centroid: the best line of that slope (weights 1/σ² in log T).
+        var w = ls.Select(v => v > 0 ? 1 / (v * v) : 1).ToArray();
+        var c = Enumerable.Range(0, lx.Length).Sum(i => w[i] * (ly[i] + (0.5 * lx[i]))) / w.Sum();
+        var reference = plot.Add.ScatterLine(gx, gx.Select(x => c - (0.5 * x)).ToArray(), FigurePalette.Reference);
+        reference.LinePattern = LinePattern.Dotted;
+        reference.LineWidth = 2.5f;
+        reference.LegendText = "slope −½ (saddle-node on the circle)";
+
+        if (s.LogModel.Count >= 2)
+        {
+            var fit = plot.Add.ScatterLine(gx, gx.Select(x => Math.Log10(s.PeriodAt(s.Onset.Value + Math.Pow(10, x)))).ToArray(), FigurePalette.Period);
+            fit.LineWidth = 2;
+            fit.LegendText = string.Create(Inv, $"fitted law, β = {s.Exponent.Value:F3}{(s.LogModel.Count > 2 ? " (with correction terms)" : string.Empty)}");
+        }
+
+        var bars = plot.Add.ErrorBar(lx, ly, ls);
+        bars.Color = FigurePalette.Ink;
+        var marks = plot.Add.ScatterPoints(lx, ly, FigurePalette.Ink);
+        marks.MarkerSize = 8;
+        marks.LegendText = "measured period (± 1 s.e.)";
+
+        LogAxis(plot.Axes.Bottom, gx[0], gx[^1]);
+        LogAxis(plot.Axes.Left, Math.Min(ly.Min(), ly.Max()) - 0.1, ly.Max() + 0.1);
+        plot.ShowLegend(Alignment.UpperRight);
+        return new Figure("scaling", "Scaling law of the period",
+            string.Create(Inv, $"Measured periods against the distance to the onset μc = {G(s.Onset.Value, 6)} of this fit, on logarithmic axes. ") +
+            "Amber: the fitted law (with its correction terms when the information criterion kept them). Grey dots: the reference " +
+            "slope −½ of a saddle-node on the circle, placed at its best height. " + s.Evidence + ".", plot);
+    }
+
+    /// <summary>Figure 5: measured period and the two predictions, per run.</summary>
+    internal static Figure? Periods(AnalysisReport report)
+    {
+        var runs = Ordered(report).Where(r => r.IsTurning && r.Period is not null).ToList();
+        if (runs.Count == 0)
+        {
+            return null;
+        }
+
+        var plot = NewPlot("Measured and predicted periods", ParamLabel(report), "period T (time units)");
+        var mu = runs.Select(r => r.Param).ToArray();
+        var measured = runs.Select(r => r.Period!.Measured.Value).ToArray();
+        var bars = plot.Add.ErrorBar(mu, measured, runs.Select(r => Finite(r.Period!.Measured.StandardError)).ToArray());
+        bars.Color = FigurePalette.Ink;
+        var m = plot.Add.ScatterPoints(mu, measured, FigurePalette.Ink);
+        m.MarkerSize = 9;
+        m.LegendText = "measured (± 1 s.e.)";
+
+        var field = runs.Where(r => double.IsFinite(r.Period!.FromField.Value)).ToArray();
+        var f = plot.Add.Scatter(field.Select(r => r.Param).ToArray(), field.Select(r => r.Period!.FromField.Value).ToArray(), FigurePalette.Period);
+        f.MarkerShape = MarkerShape.OpenTriangleUp;
+        f.MarkerSize = 11;
+        f.LineWidth = 1.5f;
+        f.LinePattern = LinePattern.Dotted;
+        f.LegendText = "∮dθ/(dθ/dt) from the field";
+
+        var neck = runs.Where(r => double.IsFinite(r.Period!.FromBottleneck.Value)).ToArray();
+        var n = plot.Add.Scatter(neck.Select(r => r.Param).ToArray(), neck.Select(r => r.Period!.FromBottleneck.Value).ToArray(), FigurePalette.Field);
+        n.MarkerShape = MarkerShape.OpenSquare;
+        n.MarkerSize = 10;
+        n.LineWidth = 1.5f;
+        n.LinePattern = LinePattern.Dashed;
+        n.LegendText = "π/√(ab) from the bottleneck";
+
+        plot.ShowLegend(Alignment.UpperRight);
+        plot.Axes.SetLimitsY(0, 1.08 * runs.SelectMany(r => new[] { r.Period!.Measured.Value, r.Period.FromField.Value, r.Period.FromBottleneck.Value }).Where(double.IsFinite).DefaultIfEmpty(1).Max());
+        return new Figure("periods", "Measured against predicted periods",
+            "Black: the measured mean period of each run. Amber triangles: ∮dθ/(dθ/dt) from the reconstructed field, which should match " +
+            "the measurement within its error (a check on the field). Blue squares: π/√(ab) from the bottleneck alone, which " +
+            "approaches the measurement as the run nears onset.", plot);
+    }
+
+    /// <summary>Figure 6: binned residuals of every bottleneck fit across its window.</summary>
+    internal static Figure? Residuals(AnalysisReport report)
+    {
+        var runs = Ordered(report).Where(r => r.Bottleneck is { Residuals.Count: > 0 }).ToList();
+        if (runs.Count == 0)
+        {
+            return null;
+        }
+
+        var plot = NewPlot("Residuals of the bottleneck fits", "θ − θ* (rad)", "dθ/dt − (a + b(θ−θ*)²) (rad per time unit)");
+        var zero = plot.Add.HorizontalLine(0, 1, FigurePalette.Reference, LinePattern.Solid);
+        zero.LineWidth = 1;
+        var shapes = new[] { MarkerShape.FilledCircle, MarkerShape.FilledSquare, MarkerShape.FilledTriangleUp, MarkerShape.FilledDiamond, MarkerShape.OpenCircle, MarkerShape.OpenSquare };
+        for (var i = 0; i < runs.Count; i++)
+        {
+            var res = runs[i].Bottleneck!.Residuals;
+            var colour = FigurePalette.Run(i, runs.Count);
+            var x = res.Select(b => b.Offset).ToArray();
+            var y = res.Select(b => b.Residual).ToArray();
+            var bars = plot.Add.ErrorBar(x, y, res.Select(b => Finite(b.StandardError)).ToArray());
+            bars.Color = colour;
+            var sc = plot.Add.Scatter(x, y, colour);
+            sc.MarkerShape = shapes[i % shapes.Length];
+            sc.MarkerSize = 7;
+            sc.LineWidth = 1;
+            sc.LegendText = "μ = " + G(runs[i].Param, 6);
+        }
+
+        plot.ShowLegend(Edge.Right);
+        return new Figure("residuals", "Residuals of the bottleneck fits",
+            "For each run, the time-weighted mean of dθ/dt − (a + b(θ−θ*)²) in bins across the fit window (± 1 standard error " +
+            "from the spread over revolutions). A good fit scatters about zero; a systematic U or W shape means the window is " +
+            "too wide for a parabola.", plot);
+    }
+
+    private static void OnsetMarker(Plot plot, OnsetEstimate e, Color colour, MarkerShape shape, double y, double xMin, double xMax, string label)
+    {
+        if (!e.IsAvailable)
+        {
+            return;
+        }
+
+        var lo = double.IsFinite(e.Ci95.Low) ? e.Ci95.Low : xMin;
+        var hi = double.IsFinite(e.Ci95.High) ? e.Ci95.High : xMax;
+        var bar = plot.Add.Line(lo, y, hi, y);
+        bar.Color = colour;
+        bar.LineWidth = 4;
+        var dot = plot.Add.Marker(e.Value, y, shape, 12, colour);
+        dot.LegendText = $"{label}: {ReportNumbers.WithError(e.Value, e.StandardError)}, 95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}";
+    }
+
+    private static Plot NewPlot(string title, string x, string y)
+    {
+        var plot = new Plot();
+        plot.Title(title, 17);
+        plot.XLabel(x, 15);
+        plot.YLabel(y, 15);
+        plot.Axes.Title.Label.Bold = true;
+        plot.Axes.Bottom.Label.Bold = true;
+        plot.Axes.Left.Label.Bold = true;
+        plot.Axes.Bottom.TickLabelStyle.FontSize = 13;
+        plot.Axes.Left.TickLabelStyle.FontSize = 13;
+        plot.Grid.MajorLineColor = Color.FromHex("#E4E4E8");
+        plot.Legend.FontSize = 12;
+        return plot;
+    }
+
+    /// <summary>Ticks of a log₁₀ axis at 1, 2, 5 × 10ᵏ (labelled) and the other integers × 10ᵏ (minor).</summary>
+    private static void LogAxis(IAxis axis, double log10Min, double log10Max)
+    {
+        var ticks = new ScottPlot.TickGenerators.NumericManual();
+        for (var k = (int)Math.Floor(log10Min) - 1; k <= (int)Math.Ceiling(log10Max); k++)
+        {
+            for (var m = 1; m <= 9; m++)
+            {
+                var v = m * Math.Pow(10, k);
+                var lv = Math.Log10(v);
+                if (lv < log10Min - 0.3 || lv > log10Max + 0.3)
+                {
+                    continue;
+                }
+
+                if (m is 1 or 2 or 5)
+                {
+                    ticks.AddMajor(lv, v.ToString("G3", Inv));
+                }
+                else
+                {
+                    ticks.AddMinor(lv);
+                }
+            }
+        }
+
+        axis.TickGenerator = ticks;
+    }
+
+    private static IEnumerable<RunResult> Ordered(AnalysisReport report) => report.Runs.OrderBy(r => r.Param);
+
+    private static double[] Grid(double lo, double hi, int n) => [.. Enumerable.Range(0, n).Select(i => lo + ((hi - lo) * i / (n - 1)))];
+
+    private static double Finite(double x) => double.IsFinite(x) ? x : 0;
+
+    private static string UnitsOr(AnalysisReport report, string fallback) => report.ParamUnits is { Length: > 0 } u ? u : fallback;
+
+    private static string G(double x, int digits) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
+}

@@ -1,0 +1,318 @@
+using System.Globalization;
+using System.Net;
+using System.Text;
+using System.Text.RegularExpressions;
+using NormalFormFit.Analysis;
+using NormalFormFit.Onset;
+using NormalFormFit.Reporting.Figures;
+using static NormalFormFit.Reporting.ReportNumbers;
+
+namespace NormalFormFit.Reporting.Html;
+
+/// <summary>What the page says about where it came from.</summary>
+public sealed record HtmlReportOptions
+{
+    /// <summary>Name of the manifest analysed, shown in the heading.</summary>
+    public string? Source { get; init; }
+
+    /// <summary>Version of the tool, shown in the heading.</summary>
+    public string? ToolVersion { get; init; }
+
+    /// <summary>Embed the figures' typeface so the page looks the same without it installed (about 2 MB).</summary>
+    public bool EmbedFont { get; init; } = true;
+
+    /// <summary>Defaults.</summary>
+    public static HtmlReportOptions Default { get; } = new();
+}
+
+/// <summary>
+/// One self-contained HTML page: the answer first, then the figures (inline SVG), the per-run table, the
+/// diagnostics, the method notes with their sources and the cautions. Styles are inline; nothing is fetched.
+/// </summary>
+public static partial class HtmlReport
+{
+    private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
+
+    /// <summary>Builds the page from the report and its figures (SVG text in the same order as the figures).</summary>
+    public static string Build(AnalysisReport report, IReadOnlyList<(Figure Figure, string Svg)> figures, HtmlReportOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(report);
+        ArgumentNullException.ThrowIfNull(figures);
+        options ??= HtmlReportOptions.Default;
+        var sb = new StringBuilder();
+        sb.Append("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
+        sb.Append("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
+        sb.Append("<title>Onset report").Append(options.Source is null ? string.Empty : " — " + E(options.Source)).Append("</title>\n");
+        sb.Append("<style>\n");
+        if (options.EmbedFont)
+        {
+            FontFace(sb, bold: false);
+            FontFace(sb, bold: true);
+        }
+
+        sb.Append(Style);
+        sb.Append("</style>\n</head>\n<body>\n<main>\n");
+
+        sb.Append("<header><h1>Onset report</h1><p class=\"meta\">");
+        var meta = new List<string>();
+        if (options.Source is not null)
+        {
+            meta.Add("manifest " + E(options.Source));
+        }
+
+        meta.Add(string.Create(Inv, $"{report.Runs.Count} runs ({report.Runs.Count(r => r.IsTurning)} turning)"));
+        if (report.ParamUnits is not null)
+        {
+            meta.Add("μ in " + E(report.ParamUnits));
+        }
+
+        if (options.ToolVersion is not null)
+        {
+            meta.Add("nffit " + E(options.ToolVersion));
+        }
+
+        sb.Append(string.Join(" · ", meta)).Append("</p></header>\n");
+
+        Answer(sb, report);
+        Figures(sb, figures);
+        Runs(sb, report);
+        Diagnostics(sb, report);
+        Methods(sb);
+        sb.Append("<section id=\"cautions\"><h2>Cautions</h2><p class=\"caution\">").Append(E(TextReport.Caution)).Append("</p>");
+        sb.Append("<p>The intervals are statistical: they assume the runs are steady, the control parameter is set as recorded, ")
+          .Append("and the onset is approached along the same path as the runs. They do not cover drifts, hysteresis or effects ")
+          .Append("outside the measured range.</p></section>\n");
+        sb.Append("</main>\n</body>\n</html>\n");
+        return sb.ToString();
+    }
+
+    private static void Answer(StringBuilder sb, AnalysisReport report)
+    {
+        var u = report.ParamUnits is { Length: > 0 } units ? " " + E(units) : string.Empty;
+        sb.Append("<section id=\"answer\"><h2>Answer</h2>\n<table class=\"answer\">\n<thead><tr><th>onset μc</th><th>value ± s.e.</th>")
+          .Append("<th>95% interval</th><th>runs</th><th>trend</th></tr></thead>\n<tbody>\n");
+        OnsetRow(sb, "from the bottleneck (a → 0)", report.FromBottleneck, u, "route-field");
+        OnsetRow(sb, "from the periods (T⁻² → 0)", report.FromPeriod, u, "route-period");
+        sb.Append("</tbody></table>\n");
+
+        var ag = report.Agreement;
+        if (!double.IsFinite(ag.Z))
+        {
+            sb.Append("<p class=\"verdict unknown\"><strong>Agreement:</strong> not available (one route gave no estimate).</p>\n");
+        }
+        else if (ag.Consistent)
+        {
+            sb.Append(string.Create(Inv, $"<p class=\"verdict good\"><strong>The two routes agree</strong>: z = {ag.Z:F2} (|z| ≤ 2).</p>\n"));
+        }
+        else
+        {
+            sb.Append(string.Create(Inv, $"<p class=\"verdict bad\"><strong>The two routes disagree</strong>: z = {ag.Z:F2} (|z| &gt; 2). Most likely: {E(ag.Reason ?? "unknown")}.</p>\n"));
+        }
+
+        if (report.Scaling is { } s)
+        {
+            var kind = s.Verdict == "saddle-node-on-circle" ? "good" : "unknown";
+            sb.Append("<p class=\"verdict ").Append(kind).Append("\"><strong>Kind of onset: ").Append(E(s.Verdict)).Append("</strong>. ")
+              .Append(E(Capitalise(s.Evidence))).Append(".</p>\n");
+        }
+        else
+        {
+            sb.Append("<p class=\"verdict unknown\"><strong>Kind of onset:</strong> undetermined — the scaling law needs at least four runs with timed periods.</p>\n");
+        }
+
+        var warnings = report.AllDiagnostics.Count(d => d.Severity == Severity.Warning);
+        if (warnings > 0)
+        {
+            sb.Append(string.Create(Inv, $"<p class=\"note\">{warnings} warning(s) qualify these results: see <a href=\"#diagnostics\">Diagnostics</a>.</p>\n"));
+        }
+
+        sb.Append("</section>\n");
+    }
+
+    private static void OnsetRow(StringBuilder sb, string label, OnsetEstimate e, string units, string css)
+    {
+        sb.Append("<tr class=\"").Append(css).Append("\"><th scope=\"row\">").Append(E(label)).Append("</th>");
+        if (!e.IsAvailable)
+        {
+            var why = e.Diagnostics.Count > 0 ? e.Diagnostics[0].Message : "not available";
+            sb.Append("<td colspan=\"4\">not available: ").Append(E(why)).Append("</td></tr>\n");
+            return;
+        }
+
+        sb.Append("<td class=\"num\">").Append(WithError(e.Value, e.StandardError)).Append(units).Append("</td>")
+          .Append("<td class=\"num\">").Append(Interval(e.Ci95, e.StandardError)).Append(units).Append("</td>")
+          .Append("<td class=\"num\">").Append(e.Runs.ToString(Inv)).Append("</td>")
+          .Append("<td>").Append(e.Trend is { } t ? (t.Degree == 1 ? "straight line" : "degree " + t.Degree.ToString(Inv)) : "–").Append("</td></tr>\n");
+    }
+
+    private static void Figures(StringBuilder sb, IReadOnlyList<(Figure Figure, string Svg)> figures)
+    {
+        sb.Append("<section id=\"figures\"><h2>Figures</h2>\n");
+        for (var i = 0; i < figures.Count; i++)
+        {
+            var (fig, svg) = figures[i];
+            sb.Append("<figure id=\"fig-").Append(E(fig.Name)).Append("\">\n<h3>Figure ").Append(i + 1).Append(". ").Append(E(fig.Title)).Append("</h3>\n");
+            sb.Append(InlineSvg(svg, "f" + (i + 1).ToString(Inv) + "-"));
+            sb.Append("\n<figcaption>").Append(E(fig.Caption)).Append(" Files: ").Append(E(fig.Name)).Append(".png, ").Append(E(fig.Name)).Append(".svg.</figcaption>\n</figure>\n");
+        }
+
+        sb.Append("</section>\n");
+    }
+
+    private static void Runs(StringBuilder sb, AnalysisReport report)
+    {
+        sb.Append("<section id=\"runs\"><h2>Runs</h2>\n<div class=\"scroll\"><table class=\"runs\">\n<thead><tr>")
+          .Append("<th>run</th><th>μ</th><th>θ* (rad)</th><th>a</th><th>b</th><th>T measured</th><th>π/√(ab)</th><th>∮dθ/θ̇</th><th>revs</th><th>flags</th>")
+          .Append("</tr></thead>\n<tbody>\n");
+        foreach (var r in report.Runs.OrderBy(r => r.Param))
+        {
+            var b = r.Bottleneck;
+            var p = r.Period;
+            sb.Append("<tr><td>").Append(E(r.Label ?? r.File)).Append("</td>")
+              .Append("<td class=\"num\">").Append(G(r.Param)).Append("</td>")
+              .Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.Phase.Value, b.Phase.StandardError)).Append("</td>")
+              .Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.A.Value, b.A.StandardError)).Append("</td>")
+              .Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.B.Value, b.B.StandardError)).Append("</td>")
+              .Append("<td class=\"num\">").Append(p is null ? "–" : WithError(p.Measured.Value, p.Measured.StandardError)).Append("</td>")
+              .Append("<td class=\"num\">").Append(p is null ? "–" : G(p.FromBottleneck.Value, 5)).Append("</td>")
+              .Append("<td class=\"num\">").Append(p is null ? "–" : G(p.FromField.Value, 5)).Append("</td>")
+              .Append("<td class=\"num\">").Append((p?.Revolutions ?? 0).ToString(Inv)).Append("</td>")
+              .Append("<td>").Append(r.Flags.Count == 0 ? "ok" : E(string.Join(", ", r.Flags))).Append("</td></tr>\n");
+        }
+
+        sb.Append("</tbody></table></div>\n<p class=\"note\">Values ± one standard error. The same numbers, unrounded, are in runs.csv; ")
+          .Append("each run's reconstructed field with its band is in field.csv; everything is in report.json.</p></section>\n");
+    }
+
+    private static void Diagnostics(StringBuilder sb, AnalysisReport report)
+    {
+        var diags = report.AllDiagnostics.OrderByDescending(d => d.Severity).ToList();
+        sb.Append("<section id=\"diagnostics\"><h2>Diagnostics</h2>\n");
+        if (diags.Count == 0)
+        {
+            sb.Append("<p>None: no run or fit raised a warning.</p></section>\n");
+            return;
+        }
+
+        sb.Append("<ul class=\"diags\">\n");
+        foreach (var d in diags)
+        {
+            var level = d.Severity switch { Severity.Error => "error", Severity.Warning => "warning", _ => "note" };
+            sb.Append("<li class=\"").Append(level).Append("\"><span class=\"level\">").Append(level).Append("</span> ");
+            if (d.File is not null)
+            {
+                sb.Append("<code>").Append(E(d.File)).Append("</code>: ");
+            }
+
+            sb.Append(E(d.Message)).Append(" <span class=\"code\">(").Append(E(d.Code)).Append(")</span></li>\n");
+        }
+
+        sb.Append("</ul></section>\n");
+    }
+
+    private static void Methods(StringBuilder sb)
+    {
+        sb.Append("<section id=\"methods\"><h2>Method notes</h2>\n<dl>\n");
+        foreach (var (term, text) in MethodNotes)
+        {
+            sb.Append("<dt>").Append(E(term)).Append("</dt><dd>").Append(E(text)).Append("</dd>\n");
+        }
+
+        sb.Append("</dl></section>\n");
+    }
+
+    private static readonly (string Term, string Text)[] MethodNotes =
+    [
+        ("Phase velocity", "The phase of each run is smoothed by a cubic smoothing spline (Reinsch 1967; Green & Silverman 1994, ch. 2) " +
+            "with the smoothing chosen by generalised cross-validation (Craven & Wahba 1979; trace of the influence matrix as in " +
+            "Hutchinson & de Hoog 1985); dθ/dt is the spline's derivative."),
+        ("Field on the circle", "dθ/dt is averaged over phase in equal bins. Its uncertainty comes from a block bootstrap " +
+            "(Künsch 1989) with whole revolutions as blocks, because samples along one trajectory are correlated."),
+        ("Bottleneck normal form", "Near a saddle-node on the circle the slowest part of the field is θ̇ ≈ a + b(θ−θ*)², with a ∝ μ − μc " +
+            "(Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., §4.3). a and b come from a weighted quadratic fit in a window whose " +
+            "half-width follows the bottleneck's own width √(a/b); their errors from the same bootstrap."),
+        ("Periods", "The measured period is the mean time between crossings of the phase opposite the bottleneck. Predictions: " +
+            "π/√(ab), the passage time of the normal form over the whole line (Strogatz §4.3), and ∮dθ/θ̇ from the reconstructed field."),
+        ("Onset, both routes", "a and 1/T² are fitted against μ by weighted least squares, the straight line or a quadratic chosen by " +
+            "AICc (Hurvich & Tsai 1989), errors scaled by the reduced χ² (Birge ratio). The onset is the zero of the trend; its 95% " +
+            "interval inverts the test of a zero there (Fieller 1954)."),
+        ("Agreement", "z = (μc₁ − μc₂)/√(σ₁² + σ₂²); |z| > 2 is reported as a disagreement with its most likely reason."),
+        ("Scaling", "T = C|μ − μc|^(−β), fitted on log T with μc free and up to two correction terms chosen by AICc. " +
+            "A saddle-node on the circle gives β = ½ (Strogatz §4.3)."),
+    ];
+
+    /// <summary>
+    /// Makes an SVG document fit for inlining: drops the XML declaration, prefixes every id (and the references to
+    /// it) so several figures on one page do not share clip paths, and lets it scale with the page.
+    /// </summary>
+    internal static string InlineSvg(string svg, string prefix)
+    {
+        ArgumentNullException.ThrowIfNull(svg);
+        var s = XmlDeclaration().Replace(svg, string.Empty);
+        s = IdAttribute().Replace(s, m => $"id=\"{prefix}{m.Groups[1].Value}\"");
+        s = UrlReference().Replace(s, m => $"url(#{prefix}{m.Groups[1].Value})");
+        s = HrefReference().Replace(s, m => $"{m.Groups[1].Value}=\"#{prefix}{m.Groups[2].Value}\"");
+        return s.Trim();
+    }
+
+    [GeneratedRegex("<\\?xml[^>]*\\?>")]
+    private static partial Regex XmlDeclaration();
+
+    [GeneratedRegex("\\bid=\"([^\"]+)\"")]
+    private static partial Regex IdAttribute();
+
+    [GeneratedRegex("url\\(#([^)\"']+)\\)")]
+    private static partial Regex UrlReference();
+
+    [GeneratedRegex("((?:xlink:)?href)=\"#([^\"]+)\"")]
+    private static partial Regex HrefReference();
+
+    private static void FontFace(StringBuilder sb, bool bold)
+    {
+        sb.Append("@font-face{font-family:\"").Append(FigureFonts.Family).Append("\";font-weight:").Append(bold ? "bold" : "normal")
+          .Append(";src:url(data:font/ttf;base64,").Append(Convert.ToBase64String(FigureFonts.FontBytes(bold))).Append(") format(\"truetype\");}\n");
+    }
+
+    private static string E(string s) => WebUtility.HtmlEncode(s);
+
+    private static string Capitalise(string s) => s.Length == 0 ? s : char.ToUpperInvariant(s[0]) + s[1..];
+
+    private const string Style = """
+        :root{--ink:#1e1e24;--muted:#5a5a64;--rule:#d8d8de;--field:#1f5aa6;--period:#b86e12;--good:#2f6f3e;--bad:#a3322a;--warn:#8a5a00}
+        *{box-sizing:border-box}
+        body{margin:0;background:#fafafb;color:var(--ink);font:16px/1.5 "DejaVu Sans",sans-serif}
+        main{max-width:1020px;margin:0 auto;padding:24px 28px 60px;background:#fff}
+        h1{font-size:28px;margin:0 0 4px}
+        h2{font-size:21px;margin:36px 0 12px;padding-bottom:4px;border-bottom:2px solid var(--rule)}
+        h3{font-size:17px;margin:0 0 8px}
+        .meta{color:var(--muted);margin:0}
+        table{border-collapse:collapse;font-size:14px}
+        th,td{padding:5px 10px;border-bottom:1px solid var(--rule);text-align:left;vertical-align:top}
+        thead th{border-bottom:2px solid var(--ink);white-space:nowrap}
+        td.num{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}
+        table.answer{font-size:16px;margin-bottom:12px}
+        tr.route-field th{border-left:6px solid var(--field)}
+        tr.route-period th{border-left:6px solid var(--period)}
+        .verdict{padding:8px 12px;border-left:6px solid var(--muted);background:#f3f3f6;margin:8px 0}
+        .verdict.good{border-color:var(--good)}
+        .verdict.bad{border-color:var(--bad)}
+        figure{margin:24px 0 32px}
+        figure svg{display:block;width:100%;height:auto;border:1px solid var(--rule)}
+        figcaption{color:var(--muted);font-size:14px;margin-top:6px}
+        .scroll{overflow-x:auto}
+        table.runs{font-size:13px}
+        table.runs th,table.runs td{padding:4px 6px}
+        table.runs td:first-child{white-space:nowrap}
+        .note{color:var(--muted);font-size:14px}
+        ul.diags{padding-left:0;list-style:none}
+        ul.diags li{margin:4px 0;padding-left:8px;border-left:4px solid var(--rule)}
+        ul.diags li.warning{border-color:var(--warn)}
+        ul.diags li.error{border-color:var(--bad)}
+        .level{font-weight:bold;text-transform:uppercase;font-size:12px}
+        .code{color:var(--muted);font-size:13px}
+        dt{font-weight:bold;margin-top:10px}
+        dd{margin:2px 0 0 0}
+        .caution{padding:10px 14px;border:2px solid var(--warn);background:#fff8ea;font-weight:bold}
+
+        """;
+}

@@ -1,0 +1,126 @@
+using System.Diagnostics;
+using SkiaSharp;
+
+namespace NormalFormFit.Tests.Reporting;
+
+/// <summary>Headless Chromium (Debian's package, installed by .ci/install-browser).</summary>
+internal static class Chromium
+{
+    public static string? Path { get; } = new[] { "/usr/bin/chromium", "/usr/bin/chromium-browser" }.FirstOrDefault(File.Exists);
+
+    /// <summary>
+    /// Opens <paramref name="page"/>, writes a screenshot, returns the page's console messages. Console messages
+    /// come from <c>--enable-logging=stderr --v=0</c>, which copies every console entry of the page to stderr as
+    /// "…:CONSOLE(line)] "message", source: …". That catches what a reader's browser would complain about (script
+    /// errors, blocked content) in the same run as the screenshot; --dump-dom would need a second launch and
+    /// shows the DOM, not errors.
+    /// </summary>
+    public static IReadOnlyList<string> Open(string page, string screenshot, int width, int height)
+    {
+        var profile = Directory.CreateTempSubdirectory("nffit-chromium-").FullName;
+        try
+        {
+            var psi = new ProcessStartInfo(Path!)
+            {
+                RedirectStandardError = true,
+                RedirectStandardOutput = true,
+                UseShellExecute = false,
+            };
+            foreach (var a in new[]
+            {
+                "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking",
+                "--disable-component-update", "--disable-sync", "--user-data-dir=" + profile, "--enable-logging=stderr", "--v=0",
+                "--screenshot=" + screenshot, $"--window-size={width},{height}", new Uri(page).AbsoluteUri,
+            })
+            {
+                psi.ArgumentList.Add(a);
+            }
+
+            using var p = Process.Start(psi)!;
+            var stderr = p.StandardError.ReadToEndAsync();
+            var stdout = p.StandardOutput.ReadToEndAsync();
+            if (!p.WaitForExit(TimeSpan.FromSeconds(90)))
+            {
+                p.Kill(entireProcessTree: true);
+                Assert.Fail("chromium did not finish within 90 s");
+            }
+
+            return [.. stderr.Result.Split('\n').Where(l => l.Contains(":CONSOLE", StringComparison.Ordinal))];
+        }
+        finally
+        {
+            Directory.Delete(profile, recursive: true);
+        }
+    }
+}
+
+/// <summary>Runs when Chromium is installed; skips only outside CI (under CI=true a missing browser fails).</summary>
+public sealed class ChromiumFactAttribute : FactAttribute
+{
+    public ChromiumFactAttribute()
+    {
+        if (Chromium.Path is null && string.IsNullOrEmpty(Environment.GetEnvironmentVariable("CI")))
+        {
+            Skip = "chromium is not installed (run .ci/install-browser); under CI=true this test fails instead of skipping";
+        }
+    }
+}
+
+[Collection(DemoFolderGroup.Name)]
+public class ChromiumReportTests(DemoFolder demo)
+{
+    [ChromiumFact]
+    public void ReportPage_InHeadlessChromium_RendersSomethingAndLogsNoErrors()
+    {
+        Assert.True(Chromium.Path is not null, "chromium is required under CI=true: .ci/install-browser installs it");
+        var shot = Path.Combine(demo.Root, "page.png");
+
+        var console = Chromium.Open(Path.Combine(demo.Report, "report.html"), shot, 1200, 2400);
+
+        Assert.Empty(console);
+        using var bitmap = SKBitmap.Decode(shot);
+        Assert.Equal(1200, bitmap.Width);
+
+        // Not blank: text, tables and figures darken a few percent of the page and bring the palette's colours
+        // (common practice, no source: a blank or error page is one colour, a text-only page has no blue).
+        var (dark, colours, blue) = Ink(bitmap);
+        Assert.True(dark > 0.02, $"only {dark:P1} of the screenshot is ink");
+        Assert.True(colours > 50, $"only {colours} distinct colours in the screenshot");
+        Assert.True(blue, "no pixel of the field-route blue: the figures did not render");
+    }
+
+    [ChromiumFact]
+    public void ConsoleCheck_CatchesAnErrorThePageLogs()
+    {
+        // The check above must be able to fail: a page that logs an error is caught.
+        Assert.True(Chromium.Path is not null, "chromium is required under CI=true: .ci/install-browser installs it");
+        var page = Path.Combine(demo.Root, "bad.html");
+        File.WriteAllText(page, "<!DOCTYPE html><html><body><p>x</p><script>console.error('broken page')</script></body></html>");
+
+        var console = Chromium.Open(page, Path.Combine(demo.Root, "bad.png"), 400, 300);
+
+        Assert.Contains(console, l => l.Contains("broken page", StringComparison.Ordinal));
+    }
+
+    private static (double Dark, int Colours, bool Blue) Ink(SKBitmap bitmap)
+    {
+        long dark = 0, total = 0;
+        var colours = new HashSet<uint>();
+        var blue = false;
+        for (var y = 0; y < bitmap.Height; y += 2)
+        {
+            for (var x = 0; x < bitmap.Width; x += 2)
+            {
+                var c = bitmap.GetPixel(x, y);
+                total++;
+                dark += c.Red + c.Green + c.Blue < 3 * 200 ? 1 : 0;
+                colours.Add((uint)c);
+
+                // Within 24 levels per channel of FigurePalette.Field (#1F5AA6): antialiasing shifts a few levels.
+                blue |= Math.Abs(c.Red - 0x1F) < 24 && Math.Abs(c.Green - 0x5A) < 24 && Math.Abs(c.Blue - 0xA6) < 24;
+            }
+        }
+
+        return (dark / (double)total, colours.Count, blue);
+    }
+}
