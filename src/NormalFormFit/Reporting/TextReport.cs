@@ -141,8 +141,11 @@ public static class TextReport
         foreach (var m in report.NextMeasurements)
         {
             var period = double.IsFinite(m.ExpectedPeriod) ? string.Create(Inv, $", period about {m.ExpectedPeriod:G3}") : string.Empty;
+            // Digits to the second significant figure of the interval's implied standard error (width / 3.92).
+            var now = ReportNumbers.Interval(m.CurrentCi95, m.CurrentCi95.Width / 3.92);
+            var then = ReportNumbers.Interval(m.ExpectedCi95, m.ExpectedCi95.Width / 3.92);
             sb.AppendLine(string.Create(Inv,
-                $"  {m.Route} route: {m.Runs} run(s) at μ = {m.Param:G6}{units}{period}: interval {B(m.CurrentCi95.Low)} to {B(m.CurrentCi95.High)} expected to become {B(m.ExpectedCi95.Low)} to {B(m.ExpectedCi95.High)}"));
+                $"  {m.Route} route: {m.Runs} run(s) at μ = {m.Param:G6}{units}{period}: interval {now} expected to become {then}"));
         }
     }
 
@@ -154,10 +157,9 @@ public static class TextReport
             return label + "not available: " + why;
         }
 
-        return string.Create(Inv, $"{label}μc = {e.Value:G6}{units}  [{B(e.Ci95.Low)}, {B(e.Ci95.High)}]  (±{e.StandardError:G2}, {e.Runs} runs, trend degree {e.Trend?.Degree})");
+        return string.Create(Inv,
+            $"{label}μc = {ReportNumbers.WithError(e.Value, e.StandardError)}{units}  95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}  ({e.Runs} runs, trend degree {e.Trend?.Degree})");
     }
-
-    private static string B(double x) => double.IsFinite(x) ? x.ToString("G6", Inv) : (x > 0 ? "+∞" : "−∞");
 
     private static string G(double x, int digits) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
 

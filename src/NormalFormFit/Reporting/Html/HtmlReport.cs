@@ -275,7 +275,8 @@ public static partial class HtmlReport
 
     private static string E(string s) => WebUtility.HtmlEncode(s);
 
-    private static string Capitalise(string s) => s.Length == 0 ? s : char.ToUpperInvariant(s[0]) + s[1..];
+    // Only Latin letters: a Greek symbol such as β must keep its case (Β would read as a B).
+    private static string Capitalise(string s) => s.Length == 0 || !char.IsAsciiLetterLower(s[0]) ? s : char.ToUpperInvariant(s[0]) + s[1..];
 
     private const string Style = """
         :root{--ink:#1e1e24;--muted:#5a5a64;--rule:#d8d8de;--field:#1f5aa6;--period:#b86e12;--good:#2f6f3e;--bad:#a3322a;--warn:#8a5a00}
