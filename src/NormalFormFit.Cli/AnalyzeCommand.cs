@@ -19,9 +19,10 @@ internal static class AnalyzeCommand
         var threads = new Option<int>("--threads") { Description = "runs analysed at once (default: one per core); results do not depend on it", DefaultValueFactory = _ => Environment.ProcessorCount };
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
         var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
+        var runsOnly = new Option<string?>("--runs-only") { Description = "analyse the runs only and write one JSON line per run to FILE, for 'nffit combine' (docs/scale.md)" };
         var cmd = new Command("analyze", "Find the onset from a set of runs: bottleneck normal form, periods, scaling")
         {
-            manifest, json, timeCol, phaseCol, unit, decimalComma, threads, quiet, verbose,
+            manifest, json, timeCol, phaseCol, unit, decimalComma, threads, quiet, verbose, runsOnly,
         };
         cmd.SetAction(pr =>
         {
@@ -41,14 +42,24 @@ internal static class AnalyzeCommand
                 },
                 Parallelism = Math.Max(1, pr.GetValue(threads)),
             };
-            return Execute(pr.GetValue(manifest)!, pr.GetValue(json), pr.GetValue(quiet), options, stdout, stderr);
+            var progress = RunProgress.ForTerminal(stderr, pr.GetValue(quiet));
+            return pr.GetValue(runsOnly) is { } linesPath
+                ? RunsOnlyCommand.Execute(pr.GetValue(manifest)!, linesPath, pr.GetValue(quiet), options, stdout, stderr, progress)
+                : Execute(pr.GetValue(manifest)!, pr.GetValue(json), pr.GetValue(quiet), options, stdout, stderr, progress);
         });
         return cmd;
     }
 
-    internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr)
+    internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr, IProgress<int>? progress = null)
     {
-        var result = ManifestAnalyzer.Analyze(manifestPath, options);
+        var result = ManifestAnalyzer.Analyze(manifestPath, options, progress);
+        RunProgress.Finish(progress, stderr);
+        return Report(result, jsonPath, quiet, stdout, stderr);
+    }
+
+    /// <summary>Prints an analysis (text and/or JSON) or its errors; returns the exit code. Shared with combine.</summary>
+    internal static int Report(Loaded<AnalysisReport> result, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr)
+    {
         if (result.Value is null)
         {
             var errors = result.Diagnostics.Where(d => d.Severity == Severity.Error).ToList();

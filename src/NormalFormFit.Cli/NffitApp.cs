@@ -19,6 +19,7 @@ internal static class NffitApp
             {
                 AnalyzeCommand.Create(stdout, stderr),
                 SimulateCommand.Create(stdout, stderr),
+                CombineCommand.Create(stdout, stderr),
             };
             var parsed = root.Parse(args);
             if (parsed.Errors.Count > 0)
