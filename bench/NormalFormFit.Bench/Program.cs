@@ -26,6 +26,11 @@ public static class Program
             return Smooth(args[1..]);
         }
 
+        if (args.Length > 0 && args[0] == "memory")
+        {
+            return Memory(args[1..]);
+        }
+
         BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
         return 0;
     }
@@ -61,6 +66,33 @@ public static class Program
         // CPU time is the fair figure on a shared machine: wall time includes waiting for a core.
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"read {files.Length} file(s): {samples} samples, {bytes / 1e6:F1} MB; best of 3: {best:F2} s wall ({bytes / 1e6 / best:F0} MB/s), {bestCpu:F2} s CPU ({bytes / 1e6 / bestCpu:F0} MB/s per core)"));
+        return 0;
+    }
+
+    // Allocation of RunAnalyzer.Analyze on one run, with each smoother: what a run costs in memory besides its
+    // trajectory (t, θ). Allocation, not peak: an upper bound on what the run can hold at once.
+    private static int Memory(string[] sizes)
+    {
+        Console.WriteLine("samples  method     allocated MB  bytes/sample");
+        foreach (var s in sizes)
+        {
+            var n = int.Parse(s, CultureInfo.InvariantCulture);
+            var (t, y) = Synthetic.Record(n);
+            var trajectory = Trajectory.FromRecording(new PhaseRecording("probe", t, y, [0]));
+            foreach (var method in new[] { SmoothingMethod.Exact, SmoothingMethod.Penalized })
+            {
+                var options = new NormalFormFit.Analysis.RunOptions { Smoothing = new SmoothingOptions { Method = method } };
+                var before = GC.GetAllocatedBytesForCurrentThread();
+                NormalFormFit.Analysis.RunAnalyzer.Analyze(trajectory, 1.05, "probe", null, options);
+                var bytes = GC.GetAllocatedBytesForCurrentThread() - before;
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{n,8}  {method,-9}  {bytes / 1e6,12:F1}  {(double)bytes / n,12:F1}"));
+                before = GC.GetAllocatedBytesForCurrentThread();
+                SegmentSmoother.Smooth(t, trajectory.Phase, options.Smoothing, new double[n], new double[n]);
+                bytes = GC.GetAllocatedBytesForCurrentThread() - before;
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{n,8}  {method,-9}  {bytes / 1e6,12:F1}  {(double)bytes / n,12:F1}  (smoothing alone, with its two output arrays)"));
+            }
+        }
+
         return 0;
     }
 

@@ -174,6 +174,13 @@ public static class PenalizedSpline
         private readonly double penaltyScale; // mean samples per knot interval: puts λ on the scale of BᵀB
         private readonly double[] coefficients;
 
+        // Per-λ work space, allocated once: the matrix, its factors, the band of its inverse.
+        private readonly SymmetricBandedMatrix matrix;
+        private readonly SymmetricBandedMatrix inverseBand;
+        private readonly double[] factorLower;
+        private readonly double[] factorDiagonal;
+        private readonly double[] trial;
+
         public PenalizedSplineSystem(ReadOnlySpan<double> t, ReadOnlySpan<double> y, int intervals)
         {
             n = t.Length;
@@ -186,6 +193,11 @@ public static class PenalizedSpline
             gram = new double[Coefficients * (Band + 1)];
             bty = new double[Coefficients];
             coefficients = new double[Coefficients];
+            matrix = new SymmetricBandedMatrix(Coefficients, Band);
+            inverseBand = new SymmetricBandedMatrix(Coefficients, Band);
+            factorLower = new double[Coefficients * Band];
+            factorDiagonal = new double[Coefficients];
+            trial = new double[Coefficients];
             penaltyScale = (double)n / intervals;
             Span<double> b = stackalloc double[4];
             var sum = 0.0;
@@ -218,7 +230,6 @@ public static class PenalizedSpline
         public Point Evaluate(double scaledLambda, bool keepCoefficients)
         {
             var m = Coefficients;
-            var matrix = new SymmetricBandedMatrix(m, Band);
             var a = matrix.LowerBandForWriting;
             gram.CopyTo(a);
             var w = scaledLambda * penaltyScale;
@@ -236,16 +247,17 @@ public static class PenalizedSpline
             BandedLdlt factor;
             try
             {
-                factor = matrix.Factorize();
+                factor = BandedLdlt.FactorizeInto(matrix, factorLower, factorDiagonal);
             }
             catch (ArgumentException)
             {
                 return new Point(false, double.NaN, double.NaN);
             }
 
-            var c = keepCoefficients ? coefficients : new double[m];
+            var c = keepCoefficients ? coefficients : trial;
             factor.Solve(bty, c);
-            var inverse = factor.InverseBand().LowerBand;
+            factor.InverseBandInto(inverseBand);
+            var inverse = inverseBand.LowerBand;
 
             // tr((BᵀB + λDᵀD)⁻¹BᵀB) needs only the band of the inverse; r = y − Bc has
             // rᵀr = yᵀy − 2cᵀBᵀy + cᵀBᵀBc.
