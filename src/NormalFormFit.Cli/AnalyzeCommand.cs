@@ -42,6 +42,12 @@ internal static class AnalyzeCommand
                 },
                 Parallelism = Math.Max(1, pr.GetValue(threads)),
             };
+            if (pr.GetValue(runsOnly) is not null && pr.GetValue(json) is not null)
+            {
+                stderr.WriteLine("nffit: usage: --runs-only writes run results only; make the JSON report with 'nffit combine FILE --json REPORT'");
+                return ExitCodes.BadInput;
+            }
+
             var progress = RunProgress.ForTerminal(stderr, pr.GetValue(quiet));
             return pr.GetValue(runsOnly) is { } linesPath
                 ? RunsOnlyCommand.Execute(pr.GetValue(manifest)!, linesPath, pr.GetValue(quiet), options, stdout, stderr, progress)

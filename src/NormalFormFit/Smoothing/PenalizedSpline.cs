@@ -69,9 +69,22 @@ public static class PenalizedSpline
             throw new ArgumentException($"A penalised spline needs at least 8 points; got {n}.", nameof(t));
         }
 
-        if (!(t[n - 1] > t[0]) || !double.IsFinite(t[0]) || !double.IsFinite(t[n - 1]))
+        for (var i = 0; i < n; i++)
         {
-            throw new ArgumentException("t must be finite and increasing.", nameof(t));
+            if (!double.IsFinite(t[i]) || !double.IsFinite(y[i]))
+            {
+                throw new ArgumentException($"t[{i}] or y[{i}] is not finite.", nameof(t));
+            }
+
+            if (i > 0 && !(t[i] > t[i - 1]))
+            {
+                throw new ArgumentException($"t must be strictly increasing; t[{i}] ≤ t[{i - 1}].", nameof(t));
+            }
+        }
+
+        if (options.Lambda is double given && !(given >= 0.0 && double.IsFinite(given)))
+        {
+            throw new ArgumentException("Lambda must be finite and non-negative.", nameof(options));
         }
 
         var perKnot = Math.Max(options.SamplesPerKnot, 1.0);

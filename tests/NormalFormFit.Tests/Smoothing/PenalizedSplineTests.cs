@@ -98,6 +98,16 @@ public class PenalizedSplineTests(ITestOutputHelper output)
     }
 
     [Fact]
+    public void Fit_OfTimesNotStrictlyIncreasing_Throws()
+    {
+        var t = Enumerable.Range(0, 20).Select(i => (double)i).ToArray();
+        t[10] = t[9];
+        var y = new double[20];
+
+        Assert.Throws<ArgumentException>(() => PenalizedSpline.Fit(t, y, null, new double[20], new double[20]));
+    }
+
+    [Fact]
     public void RotorRun_BottleneckFromPenalizedSpline_AgreesWithExactSmoothingSpline()
     {
         // One simulated rotor run θ̇ = μ − sin θ (invented demo scenario), 2.4·10⁵ samples: the same analysis with
