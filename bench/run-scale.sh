@@ -46,5 +46,5 @@ for dt in $sizes; do
 done
 printf '%s\n' "${rows[@]}" | awk '
   { x = log($1); n++; sx += x; sxx += x * x; yw = log($2); yc = log($3); sw += yw; sxw += x * yw; sc += yc; sxc += x * yc }
-  END { d = n * sxx - sx * sx; printf "fitted exponent of time against samples: wall %.3f, CPU %.3f (least squares on logs, %d sizes)\n", (n * sxw - sx * sw) / d, (n * sxc - sx * sc) / d, n }'
+  END { if (n < 2) { print "fitted exponent: needs at least two sizes"; exit } d = n * sxx - sx * sx; printf "fitted exponent of time against samples: wall %.3f, CPU %.3f (least squares on logs, %d sizes)\n", (n * sxw - sx * sw) / d, (n * sxc - sx * sc) / d, n }'
 echo "load after: $(cut -d' ' -f1-3 /proc/loadavg)"
