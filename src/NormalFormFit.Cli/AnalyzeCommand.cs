@@ -29,9 +29,10 @@ internal static class AnalyzeCommand
         var threads = new Option<int>("--threads") { Description = "runs analysed at once (default: one per core); results do not depend on it", DefaultValueFactory = _ => Environment.ProcessorCount };
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
         var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
+        var runsOnly = new Option<string?>("--runs-only") { Description = "analyse the runs only and write one JSON line per run to FILE, for 'nffit combine' (docs/scale.md)" };
         var cmd = new Command("analyze", "Find the onset from a set of runs: bottleneck normal form, periods, scaling")
         {
-            manifest, outDir, json, timeCol, phaseCol, unit, decimalComma, kind, xCol, yCol, eventCol, delimiter, yDown, unwrapped, threads, quiet, verbose,
+            manifest, outDir, json, timeCol, phaseCol, unit, decimalComma, kind, xCol, yCol, eventCol, delimiter, yDown, unwrapped, threads, quiet, verbose, runsOnly,
         };
         cmd.SetAction(pr =>
         {
@@ -71,12 +72,21 @@ internal static class AnalyzeCommand
                 },
                 Parallelism = Math.Max(1, pr.GetValue(threads)),
             };
-            return Execute(pr.GetValue(manifest)!, pr.GetValue(json), pr.GetValue(quiet), options, stdout, stderr, pr.GetValue(outDir));
+            if (pr.GetValue(runsOnly) is not null && (pr.GetValue(json) is not null || pr.GetValue(outDir) is not null))
+            {
+                stderr.WriteLine("nffit: usage: --runs-only writes run results only; make the reports with 'nffit combine FILE --json REPORT --out DIR'");
+                return ExitCodes.BadInput;
+            }
+
+            var progress = ProgressLine.For(stderr, pr.GetValue(quiet) || pr.GetValue(json) == "-");
+            return pr.GetValue(runsOnly) is { } linesPath
+                ? RunsOnlyCommand.Execute(pr.GetValue(manifest)!, linesPath, pr.GetValue(quiet), options, stdout, stderr, progress)
+                : Execute(pr.GetValue(manifest)!, pr.GetValue(json), pr.GetValue(quiet), options, stdout, stderr, pr.GetValue(outDir), progress);
         });
         return cmd;
     }
 
-    internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr, string? outDir = null)
+    internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr, string? outDir = null, ProgressLine? progress = null)
     {
         if (outDir is not null && ReportFolder.Check(outDir) is { } why)
         {
@@ -84,9 +94,16 @@ internal static class AnalyzeCommand
             return ExitCodes.BadInput;
         }
 
-        var progress = ProgressLine.For(stderr, quiet || jsonPath == "-");
+        progress ??= ProgressLine.For(stderr, quiet || jsonPath == "-");
         var result = ManifestAnalyzer.Analyze(manifestPath, options, progress.Counter("runs analysed"));
         progress.Clear();
+        return Report(result, jsonPath, quiet, stdout, stderr, outDir, Path.GetFileName(manifestPath), progress);
+    }
+
+    /// <summary>Prints an analysis (text, JSON, report folder) or its errors; returns the exit code. Shared with combine.</summary>
+    internal static int Report(Loaded<AnalysisReport> result, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr, string? outDir = null, string? sourceName = null, ProgressLine? progress = null)
+    {
+        progress ??= ProgressLine.For(stderr, quiet: true);
         if (result.Value is null)
         {
             var errors = result.Diagnostics.Where(d => d.Severity == Severity.Error).ToList();
@@ -103,7 +120,7 @@ internal static class AnalyzeCommand
         {
             try
             {
-                ReportFolder.Write(outDir, report, Path.GetFileName(manifestPath), progress.Report);
+                ReportFolder.Write(outDir, report, sourceName ?? "manifest", progress.Report);
                 progress.Clear();
             }
             catch (Exception e) when (e is IOException or UnauthorizedAccessException)

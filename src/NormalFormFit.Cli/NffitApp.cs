@@ -20,6 +20,7 @@ internal static class NffitApp
                 AnalyzeCommand.Create(stdout, stderr),
                 SimulateCommand.Create(stdout, stderr),
                 CompareCommand.Create(stdout, stderr),
+                CombineCommand.Create(stdout, stderr),
             };
             var parsed = root.Parse(args);
             if (parsed.Errors.Count > 0)

@@ -25,6 +25,11 @@ public static class InsufficientData
     public const string TooFewRuns = "insufficient-runs";
 }
 
+/// <summary>Analysed runs before they are combined.</summary>
+/// <param name="Runs">Per-run results in manifest order.</param>
+/// <param name="ParamUnits">Units of the control parameter, when the manifest gave them.</param>
+public sealed record RunSet(IReadOnlyList<RunResult> Runs, string? ParamUnits);
+
 /// <summary>Manifest → runs → report: the main job, wired from pure stages.</summary>
 public static class ManifestAnalyzer
 {
@@ -34,11 +39,23 @@ public static class ManifestAnalyzer
     /// </summary>
     public static Loaded<AnalysisReport> Analyze(string manifestPath, AnalyzeOptions? options = null, IProgress<int>? progress = null)
     {
+        var runs = AnalyzeRuns(manifestPath, options, progress);
+        return runs.Value is null
+            ? new Loaded<AnalysisReport>(null, runs.Diagnostics)
+            : Combine(runs.Value, manifestPath, runs.Diagnostics);
+    }
+
+    /// <summary>
+    /// Reads and analyses every run of the manifest (in parallel, results in manifest order) without combining
+    /// them: the per-run half of <see cref="Analyze"/>, whose results <see cref="Combine"/> turns into the report.
+    /// </summary>
+    public static Loaded<RunSet> AnalyzeRuns(string manifestPath, AnalyzeOptions? options = null, IProgress<int>? progress = null)
+    {
         options ??= AnalyzeOptions.Default;
         var manifest = Manifest.Read(manifestPath);
         if (manifest.Value is null)
         {
-            return new Loaded<AnalysisReport>(null, manifest.Diagnostics);
+            return new Loaded<RunSet>(null, manifest.Diagnostics);
         }
 
         var entries = manifest.Value.Entries;
@@ -71,10 +88,24 @@ public static class ManifestAnalyzer
             var line = entries[firstBad].Line;
             var context = new Diagnostic(Severity.Info, "named-by-manifest",
                 $"run file named on line {line} of the manifest", manifestPath, line);
-            return new Loaded<AnalysisReport>(null, [.. errors, context]);
+            return new Loaded<RunSet>(null, [.. errors, context]);
         }
 
-        var runs = results.Select(r => r!).ToList();
+        var set = new RunSet(results.Select(r => r!).ToList(), entries.Select(e => e.Units).FirstOrDefault(u => u is not null));
+        return new Loaded<RunSet>(set, manifest.Diagnostics);
+    }
+
+    /// <summary>
+    /// Combines analysed runs into the report (exit-code-3 diagnostic when too few runs turn). The same for runs
+    /// analysed here or read back from run lines written elsewhere (<see cref="RunLines"/>).
+    /// </summary>
+    /// <param name="set">The runs, in manifest order.</param>
+    /// <param name="source">Named in the message when the runs cannot answer.</param>
+    /// <param name="diagnostics">Diagnostics to carry into the result.</param>
+    public static Loaded<AnalysisReport> Combine(RunSet set, string source, IReadOnlyList<Diagnostic> diagnostics)
+    {
+        ArgumentNullException.ThrowIfNull(set);
+        var runs = set.Runs;
         var usable = OnsetAnalysis.UsableRuns(runs);
         if (usable < OnsetAnalysis.MinimumRuns)
         {
@@ -83,11 +114,11 @@ public static class ManifestAnalyzer
             [
                 new Diagnostic(Severity.Error, InsufficientData.TooFewRuns,
                     $"only {usable} of {runs.Count} runs turn and can be analysed ({notTurning} do not turn); an onset needs at least {OnsetAnalysis.MinimumRuns}: add runs above onset",
-                    manifestPath),
+                    source),
             ]);
         }
 
-        var report = OnsetAnalysis.Combine(runs) with { ParamUnits = entries.Select(e => e.Units).FirstOrDefault(u => u is not null) };
-        return new Loaded<AnalysisReport>(report, manifest.Diagnostics);
+        var report = OnsetAnalysis.Combine(runs) with { ParamUnits = set.ParamUnits };
+        return new Loaded<AnalysisReport>(report, diagnostics);
     }
 }

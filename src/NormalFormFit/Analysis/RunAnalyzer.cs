@@ -65,9 +65,7 @@ public static class RunAnalyzer
                 continue;
             }
 
-            var fit = CubicSmoothingSpline.Fit(t.AsSpan(s, e - s), trajectory.Phase.AsSpan(s, e - s), options.Smoothing);
-            fit.Values.CopyTo(smooth.AsSpan(s));
-            fit.FirstDerivatives.CopyTo(speed.AsSpan(s));
+            var fit = SegmentSmoother.Smooth(t.AsSpan(s, e - s), trajectory.Phase.AsSpan(s, e - s), options.Smoothing, smooth.AsSpan(s, e - s), speed.AsSpan(s, e - s));
             used.AsSpan(s, e - s).Fill(true);
             if (e - s > longest)
             {
@@ -80,17 +78,24 @@ public static class RunAnalyzer
             edf += fit.EffectiveDegreesOfFreedom;
         }
 
-        // Compact to the smoothed samples.
-        var idx = Enumerable.Range(0, n).Where(i => used[i]).ToArray();
-        if (idx.Length < MinSegment)
+        // Compact to the smoothed samples (no copies when every segment was smoothed: long records).
+        var usedCount = used.Count(u => u);
+        if (usedCount < MinSegment)
         {
-            diags.Add(Warn(file, "too-short", $"only {idx.Length} usable samples; a run needs at least {MinSegment} consecutive samples"));
+            diags.Add(Warn(file, "too-short", $"only {usedCount} usable samples; a run needs at least {MinSegment} consecutive samples"));
             return new RunResult(file, param, label, n, duration, 0, trajectory.Direction, null, null, null, null, [RunFlags.NotTurning, .. flags], diags);
         }
 
-        var tt = idx.Select(i => t[i]).ToArray();
-        var ph = idx.Select(i => smooth[i]).ToArray();
-        var v = idx.Select(i => speed[i]).ToArray();
+        double[] tt = t, ph = smooth, v = speed, raw = trajectory.Phase;
+        if (usedCount < n)
+        {
+            var idx = Enumerable.Range(0, n).Where(i => used[i]).ToArray();
+            tt = idx.Select(i => t[i]).ToArray();
+            raw = idx.Select(i => trajectory.Phase[i]).ToArray();
+            ph = idx.Select(i => smooth[i]).ToArray();
+            v = idx.Select(i => speed[i]).ToArray();
+        }
+
         var segs = CompactSegments(trajectory, used);
         var smoothing = new SmoothingSummary(firstLambda, dof > 0 ? Math.Sqrt(ssq / dof) : double.NaN, edf);
         var turns = (ph[^1] - ph[0]) / (2 * Math.PI);
@@ -99,7 +104,6 @@ public static class RunAnalyzer
             flags.Add(RunFlags.NotTurning);
             diags.Add(Info(file, "not-turning", string.Create(CultureInfo.InvariantCulture,
                 $"the phase advances only {turns:F2} turns: the run does not turn (below onset?); no period is measured")));
-            var raw = idx.Select(i => trajectory.Phase[i]).ToArray();
             var relaxation = Relaxation.Fit(tt, raw, ph, smoothing.NoiseSd);
             diags.Add(relaxation is null
                 ? Info(file, "no-relaxation", "the run does not settle visibly inside the record (or starts at rest): no relaxation rate")
@@ -188,8 +192,7 @@ public static class RunAnalyzer
             }
         }
 
-        var rawPhase = idx.Select(i => trajectory.Phase[i]).ToArray();
-        var noise = PhaseDiffusion.Estimate(tt, rawPhase, segs, field, bottleneck);
+        var noise = PhaseDiffusion.Estimate(tt, raw, segs, field, bottleneck);
         if (noise is { NoiseDominated: true })
         {
             flags.Add(RunFlags.NoiseDominated);

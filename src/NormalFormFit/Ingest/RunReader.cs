@@ -471,22 +471,44 @@ public static class RunReader
     }
 }
 
-/// <summary>A list of doubles that grows by doubling; no boxing, no LINQ.</summary>
+/// <summary>
+/// A list of doubles stored in fixed-size chunks: growing never copies, and <see cref="ToArray"/> needs only the
+/// final array besides the chunks (peak 2n doubles instead of 3n with doubling).
+/// </summary>
 internal sealed class GrowableArray(int capacity)
 {
-    private double[] _items = new double[Math.Max(capacity, 4)];
+    private const int ChunkLength = 1 << 16;
+    private readonly List<double[]> _chunks = [];
+    private double[] _current = new double[Math.Clamp(capacity, 4, ChunkLength)];
+    private int _used;
+    private int _full;
 
-    public int Count { get; private set; }
+    public int Count => _full + _used;
 
     public void Add(double v)
     {
-        if (Count == _items.Length)
+        if (_used == _current.Length)
         {
-            Array.Resize(ref _items, _items.Length * 2);
+            _chunks.Add(_current);
+            _full += _used;
+            _current = new double[ChunkLength];
+            _used = 0;
         }
 
-        _items[Count++] = v;
+        _current[_used++] = v;
     }
 
-    public double[] ToArray() => _items.AsSpan(0, Count).ToArray();
+    public double[] ToArray()
+    {
+        var result = new double[Count];
+        var at = 0;
+        foreach (var c in _chunks)
+        {
+            c.CopyTo(result, at);
+            at += c.Length;
+        }
+
+        _current.AsSpan(0, _used).CopyTo(result.AsSpan(at));
+        return result;
+    }
 }

@@ -39,10 +39,17 @@ public sealed class BandedLdlt
     public static BandedLdlt Factorize(SymmetricBandedMatrix matrix)
     {
         ArgumentNullException.ThrowIfNull(matrix);
+        return FactorizeInto(matrix, new double[matrix.Order * matrix.HalfBandwidth], new double[matrix.Order]);
+    }
+
+    /// <summary>
+    /// As <see cref="Factorize(SymmetricBandedMatrix)"/>, into caller-owned storage of n·p and n numbers, so that a
+    /// search over many matrices of one shape allocates nothing per matrix.
+    /// </summary>
+    internal static BandedLdlt FactorizeInto(SymmetricBandedMatrix matrix, double[] l, double[] d)
+    {
         int n = matrix.Order, p = matrix.HalfBandwidth;
         var a = matrix.LowerBand;
-        var l = new double[n * p];
-        var d = new double[n];
         Span<double> u = p <= 64 ? stackalloc double[p] : new double[p]; // u[k] = L(i, i − k)·D(i − k)
         for (int i = 0; i < n; i++)
         {
@@ -129,8 +136,15 @@ public sealed class BandedLdlt
     /// </summary>
     public SymmetricBandedMatrix InverseBand()
     {
+        var inverse = new SymmetricBandedMatrix(Order, HalfBandwidth);
+        InverseBandInto(inverse);
+        return inverse;
+    }
+
+    /// <summary>As <see cref="InverseBand"/>, into a caller-owned matrix of the same order and half-bandwidth.</summary>
+    internal void InverseBandInto(SymmetricBandedMatrix inverse)
+    {
         int n = Order, p = HalfBandwidth;
-        var inverse = new SymmetricBandedMatrix(n, p);
         var b = inverse.LowerBandForWriting; // B(i, i − k) at b[i·(p + 1) + k]
         for (int i = n - 1; i >= 0; i--)
         {
@@ -155,8 +169,6 @@ public sealed class BandedLdlt
 
             b[i * (p + 1)] = diag;
         }
-
-        return inverse;
     }
 
     private static double Band(Span<double> b, int p, int r, int c) =>

@@ -10,6 +10,31 @@ public sealed record SmoothingOptions
     /// </summary>
     public double? Lambda { get; init; }
 
+    /// <summary>Which smoother a run uses; <see cref="SmoothingMethod.Auto"/> chooses by record length.</summary>
+    public SmoothingMethod Method { get; init; } = SmoothingMethod.Auto;
+
+    /// <summary>
+    /// With <see cref="SmoothingMethod.Auto"/>, segments with at least this many samples use the penalised
+    /// regression spline (docs/scale.md gives the measurements behind the default).
+    /// </summary>
+    public int PenalizedFrom { get; init; } = 200_000;
+
+    /// <summary>Samples per knot interval of the penalised spline's first basis (refined when GCV asks for more).</summary>
+    public double SamplesPerKnot { get; init; } = 16;
+
     /// <summary>Default options: λ by GCV.</summary>
     public static SmoothingOptions Default { get; } = new();
+}
+
+/// <summary>The smoother used for the phase of a run.</summary>
+public enum SmoothingMethod
+{
+    /// <summary>Exact smoothing spline for short segments, penalised regression spline for long ones.</summary>
+    Auto,
+
+    /// <summary>Always the cubic smoothing spline with a knot at every sample (<see cref="CubicSmoothingSpline"/>).</summary>
+    Exact,
+
+    /// <summary>Always the penalised regression spline with fewer knots (<see cref="PenalizedSpline"/>).</summary>
+    Penalized,
 }

@@ -1,0 +1,180 @@
+using System.Diagnostics;
+using System.Globalization;
+using BenchmarkDotNet.Attributes;
+using BenchmarkDotNet.Running;
+using NormalFormFit.Ingest;
+using NormalFormFit.Smoothing;
+
+namespace NormalFormFit.Bench;
+
+/// <summary>
+/// Benchmarks of the scale work (docs/scale.md). Not part of <c>dotnet test</c>.
+/// <c>read FILE...</c> times the CSV reader alone (best of 3, MB/s per core); <c>smooth N...</c> times the two
+/// smoothers on synthetic records; anything else goes to BenchmarkDotNet (e.g. <c>--filter * --job short</c>).
+/// </summary>
+public static class Program
+{
+    public static int Main(string[] args)
+    {
+        if (args.Length > 0 && args[0] == "read")
+        {
+            return Read(args[1..]);
+        }
+
+        if (args.Length > 0 && args[0] == "smooth")
+        {
+            return Smooth(args[1..]);
+        }
+
+        if (args.Length > 0 && args[0] == "memory")
+        {
+            return Memory(args[1..]);
+        }
+
+        BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
+        return 0;
+    }
+
+    private static int Read(string[] files)
+    {
+        long bytes = 0, samples = 0;
+        var best = double.MaxValue;
+        var bestCpu = double.MaxValue;
+        for (var k = 0; k < 3; k++)
+        {
+            bytes = 0;
+            samples = 0;
+            var cpu = Process.GetCurrentProcess().TotalProcessorTime;
+            var clock = Stopwatch.StartNew();
+            foreach (var f in files)
+            {
+                var r = RunReader.Read(f);
+                if (r.Value is null)
+                {
+                    Console.Error.WriteLine(string.Join("; ", r.Diagnostics));
+                    return 2;
+                }
+
+                bytes += new FileInfo(f).Length;
+                samples += r.Value.Time.Length;
+            }
+
+            best = Math.Min(best, clock.Elapsed.TotalSeconds);
+            bestCpu = Math.Min(bestCpu, (Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds);
+        }
+
+        // CPU time is the fair figure on a shared machine: wall time includes waiting for a core.
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"read {files.Length} file(s): {samples} samples, {bytes / 1e6:F1} MB; best of 3: {best:F2} s wall ({bytes / 1e6 / best:F0} MB/s), {bestCpu:F2} s CPU ({bytes / 1e6 / bestCpu:F0} MB/s per core)"));
+        return 0;
+    }
+
+    // Allocation of RunAnalyzer.Analyze on one run, with each smoother: what a run costs in memory besides its
+    // trajectory (t, θ). Allocation, not peak: an upper bound on what the run can hold at once.
+    private static int Memory(string[] sizes)
+    {
+        Console.WriteLine("samples  method     allocated MB  bytes/sample");
+        foreach (var s in sizes)
+        {
+            var n = int.Parse(s, CultureInfo.InvariantCulture);
+            var (t, y) = Synthetic.Record(n);
+            var trajectory = Trajectory.FromRecording(new PhaseRecording("probe", t, y, [0]));
+            foreach (var method in new[] { SmoothingMethod.Exact, SmoothingMethod.Penalized })
+            {
+                var options = new NormalFormFit.Analysis.RunOptions { Smoothing = new SmoothingOptions { Method = method } };
+                var before = GC.GetAllocatedBytesForCurrentThread();
+                NormalFormFit.Analysis.RunAnalyzer.Analyze(trajectory, 1.05, "probe", null, options);
+                var bytes = GC.GetAllocatedBytesForCurrentThread() - before;
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{n,8}  {method,-9}  {bytes / 1e6,12:F1}  {(double)bytes / n,12:F1}"));
+                before = GC.GetAllocatedBytesForCurrentThread();
+                SegmentSmoother.Smooth(t, trajectory.Phase, options.Smoothing, new double[n], new double[n]);
+                bytes = GC.GetAllocatedBytesForCurrentThread() - before;
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{n,8}  {method,-9}  {bytes / 1e6,12:F1}  {(double)bytes / n,12:F1}  (smoothing alone, with its two output arrays)"));
+            }
+        }
+
+        return 0;
+    }
+
+    private static int Smooth(string[] sizes)
+    {
+        Console.WriteLine("samples  method     seconds(best of 3)  edf");
+        foreach (var s in sizes)
+        {
+            var n = int.Parse(s, CultureInfo.InvariantCulture);
+            var (t, y) = Synthetic.Record(n);
+            foreach (var method in new[] { SmoothingMethod.Penalized, SmoothingMethod.Exact })
+            {
+                var options = new SmoothingOptions { Method = method };
+                var values = new double[n];
+                var slopes = new double[n];
+                var best = double.MaxValue;
+                SegmentSmoothing? fit = null;
+                for (var k = 0; k < 3; k++)
+                {
+                    var clock = Stopwatch.StartNew();
+                    fit = SegmentSmoother.Smooth(t, y, options, values, slopes);
+                    best = Math.Min(best, clock.Elapsed.TotalSeconds);
+                }
+
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{n,8}  {method,-9}  {best,18:F3}  {fit!.EffectiveDegreesOfFreedom:F0}"));
+            }
+        }
+
+        return 0;
+    }
+}
+
+/// <summary>A rotor-like phase record: θ̇ = μ − sin θ integrated by RK4 at dt, plus Gaussian noise (invented demo data).</summary>
+public static class Synthetic
+{
+    public static (double[] T, double[] Y) Record(int n, double dt = 0.002, double mu = 1.05, double noise = 0.01, int seed = 5)
+    {
+        var rng = new Random(seed);
+        var t = new double[n];
+        var y = new double[n];
+        var th = 0.0;
+        for (var i = 0; i < n; i++)
+        {
+            t[i] = i * dt;
+            var u1 = 1.0 - rng.NextDouble();
+            var u2 = rng.NextDouble();
+            y[i] = th + (noise * Math.Sqrt(-2 * Math.Log(u1)) * Math.Cos(2 * Math.PI * u2));
+            double F(double x) => mu - Math.Sin(x);
+            var k1 = F(th);
+            var k2 = F(th + (0.5 * dt * k1));
+            var k3 = F(th + (0.5 * dt * k2));
+            var k4 = F(th + (dt * k3));
+            th += dt * (k1 + (2 * k2) + (2 * k3) + k4) / 6;
+        }
+
+        return (t, y);
+    }
+}
+
+/// <summary>Both smoothers at 10⁵ and 10⁶ samples.</summary>
+[MemoryDiagnoser]
+public class SmoothingBenchmarks
+{
+    private double[] t = [];
+    private double[] y = [];
+    private double[] values = [];
+    private double[] slopes = [];
+
+    [Params(100_000, 1_000_000)]
+    public int Samples { get; set; }
+
+    [GlobalSetup]
+    public void Setup()
+    {
+        (t, y) = Synthetic.Record(Samples);
+        values = new double[Samples];
+        slopes = new double[Samples];
+    }
+
+    [Benchmark(Baseline = true)]
+    public SegmentSmoothing Exact() => SegmentSmoother.Smooth(t, y, new SmoothingOptions { Method = SmoothingMethod.Exact }, values, slopes);
+
+    [Benchmark]
+    public SegmentSmoothing Penalized() => SegmentSmoother.Smooth(t, y, new SmoothingOptions { Method = SmoothingMethod.Penalized }, values, slopes);
+}
