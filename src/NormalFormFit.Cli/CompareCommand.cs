@@ -17,7 +17,7 @@ internal static class CompareCommand
         var c0 = new Option<double?>("--c0") { Description = "hold the offset of μ_model = c0 + c1·μ_lab at this value" };
         var c1 = new Option<double?>("--c1") { Description = "hold the scale of μ_model = c0 + c1·μ_lab at this value" };
         var noPeriods = new Option<bool>("--no-periods") { Description = "fit the fields only, leaving out the measured periods" };
-        var replicates = new Option<int>("--replicates") { Description = "runs sets simulated from the fitted model for the test and the errors (19 gives an exact 5% test; 99 a 1% test)", DefaultValueFactory = _ => CompareOptions.Default.Replicates };
+        var replicates = new Option<int>("--replicates") { Description = "run sets simulated from the fitted model for the test and the errors (19 gives an exact 5% test; 99 a 1% test)", DefaultValueFactory = _ => CompareOptions.Default.Replicates };
         var seed = new Option<int>("--seed") { Description = "seed of the simulated replicates (results are reproducible)", DefaultValueFactory = _ => CompareOptions.Default.Seed };
         var json = new Option<string?>("--json") { Description = "also write the JSON report to FILE ('-' for standard output, which then carries only the JSON)" };
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };

@@ -208,7 +208,7 @@ public static class ModelComparer
         else if (!consistent)
         {
             notes.Add(new Diagnostic(Severity.Warning, "model-rejected", string.Create(ic,
-                $"the model does not fit within the data's own scatter: Q = {observed.Total:G4} is exceeded by {exceed} of {replicates.Length} runs sets simulated from the fitted model (p = {p:G2}); worst run {worstRuns[0].File} (μ = {worstRuns[0].Param:G6}), worst phase region [{worstRegions[0].From:F2}, {worstRegions[0].To:F2})")));
+                $"the model does not fit within the data's own scatter: Q = {observed.Total:G4} is exceeded by {exceed} of {replicates.Length} run sets simulated from the fitted model (p = {p:G2}); worst run {worstRuns[0].File} (μ = {worstRuns[0].Param:G6}), worst phase region [{worstRegions[0].From:F2}, {worstRegions[0].To:F2})")));
         }
 
         return new ModelComparison(
