@@ -17,12 +17,14 @@ internal static class CompareCommand
         var c0 = new Option<double?>("--c0") { Description = "hold the offset of μ_model = c0 + c1·μ_lab at this value" };
         var c1 = new Option<double?>("--c1") { Description = "hold the scale of μ_model = c0 + c1·μ_lab at this value" };
         var noPeriods = new Option<bool>("--no-periods") { Description = "fit the fields only, leaving out the measured periods" };
+        var replicates = new Option<int>("--replicates") { Description = "run sets simulated from the fitted model for the test and the errors (19 gives an exact 5% test; 99 a 1% test)", DefaultValueFactory = _ => CompareOptions.Default.Replicates };
+        var seed = new Option<int>("--seed") { Description = "seed of the simulated replicates (results are reproducible)", DefaultValueFactory = _ => CompareOptions.Default.Seed };
         var json = new Option<string?>("--json") { Description = "also write the JSON report to FILE ('-' for standard output, which then carries only the JSON)" };
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
         var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
         var cmd = new Command("compare", "Check a reduced phase model against the runs: fitted parameters, onset, verdict, worst runs and phase regions")
         {
-            manifest, model, start, fix, c0, c1, noPeriods, json, quiet, verbose,
+            manifest, model, start, fix, c0, c1, noPeriods, replicates, seed, json, quiet, verbose,
         };
         cmd.SetAction(pr =>
         {
@@ -45,6 +47,8 @@ internal static class CompareCommand
                 FixedOffset = pr.GetValue(c0),
                 FixedScale = pr.GetValue(c1),
                 UsePeriods = !pr.GetValue(noPeriods),
+                Replicates = pr.GetValue(replicates),
+                Seed = pr.GetValue(seed),
             };
             return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr);
         });
@@ -104,21 +108,24 @@ internal static class CompareCommand
         w.WriteLine($"model  dθ/dt = {c.Expression}");
         foreach (var p in c.Parameters.Append(c.Offset).Append(c.Scale))
         {
-            w.WriteLine(string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  ± {p.StandardError:G2}{(p.Fixed ? "  (held)" : string.Empty)}"));
+            w.WriteLine(p.Fixed
+                ? string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  (held)")
+                : string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  ± {p.StandardError:G2}   95% [{p.Ci95.Low:G6}, {p.Ci95.High:G6}]"));
         }
 
         w.WriteLine(string.Create(ic, $"onset  μ_lab = {c.Onset.Value:G6} ± {c.Onset.StandardError:G2}   95% [{c.OnsetCi95.Low:G6}, {c.OnsetCi95.High:G6}]"));
-        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (lack-of-fit F = {c.Statistic:G4} on {c.ReferenceDegreesOfFreedom:F0} and {c.ReferenceScale:F0} df, p = {c.PValue:G2})"));
-        w.WriteLine("worst runs (mean square of standardised residuals; 1 is a good fit):");
+        var replicates = c.ReplicateStatistics.Count + c.FailedReplicates;
+        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {c.Statistic:G4}; {replicates} simulated from the fit: mean {c.Expected:G4}, largest {(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN):G4}; p = {c.PValue:G2})"));
+        w.WriteLine("worst runs (misfit over its mean in the simulated replicates; about 1 is a good fit):");
         foreach (var r in c.WorstRuns)
         {
-            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {r.Param:G6}  {r.Ratio:F2}  model {(r.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(r.MeanResidual):F2} SE"));
+            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {r.Param:G6}  {r.Ratio:F2}  model {(r.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(r.MeanResidual):F2} (replicate RMS)"));
         }
 
         w.WriteLine("worst phase regions (radians, in the data's phase):");
         foreach (var g in c.WorstRegions)
         {
-            w.WriteLine(string.Create(ic, $"  [{g.From:F2}, {g.To:F2})  {g.Ratio:F2}  model {(g.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(g.MeanResidual):F2} SE"));
+            w.WriteLine(string.Create(ic, $"  [{g.From:F2}, {g.To:F2})  {g.Ratio:F2}  model {(g.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(g.MeanResidual):F2} (replicate RMS)"));
         }
 
         foreach (var d in c.Diagnostics)

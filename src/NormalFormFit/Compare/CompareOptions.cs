@@ -1,4 +1,5 @@
 using System.Globalization;
+using NormalFormFit.Analysis;
 
 namespace NormalFormFit.Compare;
 
@@ -27,18 +28,24 @@ public sealed record CompareOptions
     public bool UsePeriods { get; init; } = true;
 
     /// <summary>
-    /// True (default): the fitted model is passed through the same reconstruction as the data (spline with each
-    /// run's λ, same bins) and the fields are corrected for the smoothing bias found, then the model is refitted.
+    /// Replicates B of the parametric bootstrap (the whole pipeline re-run on runs simulated from the fitted model).
+    /// The test is exact at level α when α(B + 1) is a whole number: 19 for 5%, 99 for 1%. Cost grows as B + 1.
     /// </summary>
-    public bool CorrectSmoothingBias { get; init; } = true;
+    public int Replicates { get; init; } = 19;
+
+    /// <summary>True (default): the bootstrap estimate of the bias (mostly the reconstruction's smoothing bias) is removed from the parameters and the onset.</summary>
+    public bool CorrectBias { get; init; } = true;
+
+    /// <summary>The per-run analysis the runs went through; replicates go through the same.</summary>
+    public RunOptions Analysis { get; init; } = RunOptions.Default;
+
+    /// <summary>Replicates computed at once (1 = sequential). Results do not depend on it.</summary>
+    public int Parallelism { get; init; } = Environment.ProcessorCount;
 
     /// <summary>Levenberg–Marquardt iterations at most.</summary>
     public int MaxIterations { get; init; } = 200;
 
-    /// <summary>Draws of the parameters for the onset interval.</summary>
-    public int OnsetDraws { get; init; } = 400;
-
-    /// <summary>Seed of the onset draws (results are reproducible).</summary>
+    /// <summary>Seed of the replicates' noise and initial phases (results are reproducible).</summary>
     public int Seed { get; init; } = 20260601;
 
     /// <summary>Level of the goodness-of-fit test: the model is rejected when p &lt; this.</summary>
@@ -81,14 +88,19 @@ public sealed record CompareOptions
             problems.Add("MaxIterations must be at least 1.");
         }
 
-        if (OnsetDraws < 100)
-        {
-            problems.Add("OnsetDraws must be at least 100 for a 95% interval.");
-        }
-
         if (!(Significance > 0.0 && Significance < 1.0))
         {
             problems.Add("Significance must lie strictly between 0 and 1.");
+        }
+        else if (Replicates > 100_000 || (Replicates + 1) * Significance < 1.0 - 1e-9)
+        {
+            problems.Add(string.Create(ic,
+                $"{Replicates} replicates cannot reject at level {Significance}: the smallest p-value is 1/(replicates + 1); use at least {Math.Ceiling((1.0 / Significance) - 1.0 - 1e-9)} (and at most 100000)."));
+        }
+
+        if (Parallelism < 1)
+        {
+            problems.Add("Parallelism must be at least 1.");
         }
 
         if (Regions < 2 || Regions > 64)

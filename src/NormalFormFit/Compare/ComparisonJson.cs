@@ -24,6 +24,8 @@ public static class ComparisonJson
             w.WriteString("name", p.Name);
             Number(w, "value", p.Value);
             Number(w, "se", p.StandardError);
+            Number(w, "ci95_low", p.Fixed ? p.Value : p.Ci95.Low);
+            Number(w, "ci95_high", p.Fixed ? p.Value : p.Ci95.High);
             w.WriteBoolean("fixed", p.Fixed);
             w.WriteEndObject();
         }
@@ -44,8 +46,9 @@ public static class ComparisonJson
         w.WriteBoolean("consistent", c.Consistent);
         Number(w, "statistic", c.Statistic);
         Number(w, "p_value", c.PValue);
-        Number(w, "dof_model", c.ReferenceDegreesOfFreedom);
-        Number(w, "dof_noise", c.ReferenceScale);
+        Number(w, "expected_statistic", c.Expected);
+        Number(w, "replicates", c.ReplicateStatistics.Count + c.FailedReplicates);
+        Number(w, "failed_replicates", c.FailedReplicates);
         Number(w, "points", c.Points);
         w.WriteStartArray("worst_runs");
         foreach (var r in c.WorstRuns)

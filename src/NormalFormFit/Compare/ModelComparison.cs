@@ -7,8 +7,11 @@ namespace NormalFormFit.Compare;
 /// <param name="Fixed">True when held at a given value.</param>
 public sealed record FittedParameter(string Name, double Value, double StandardError, bool Fixed)
 {
-    /// <summary>Approximate 95% interval, value ± 1.96 SE.</summary>
-    public Interval Ci95 => new(Value - (1.96 * StandardError), Value + (1.96 * StandardError));
+    /// <summary>Multiplier of the SE for the 95% interval: the t quantile for the bootstrap's degrees of freedom (1.96 when not set).</summary>
+    public double Quantile { get; init; } = 1.96;
+
+    /// <summary>95% interval, value ± Quantile × SE.</summary>
+    public Interval Ci95 => new(Value - (Quantile * StandardError), Value + (Quantile * StandardError));
 }
 
 /// <summary>How well the model fits one run.</summary>
@@ -16,9 +19,9 @@ public sealed record FittedParameter(string Name, double Value, double StandardE
 /// <param name="Param">Lab parameter μ_lab.</param>
 /// <param name="Points">Field bins plus period points of the run.</param>
 /// <param name="Statistic">Sum of squared standardised residuals.</param>
-/// <param name="Expected">Its expectation for a correct model.</param>
-/// <param name="MeanResidual">Mean standardised residual (model − data): positive when the model is too fast.</param>
-/// <param name="PeriodResidual">Standardised residual of the frequency 1/T (model − data); NaN when not used.</param>
+/// <param name="Expected">Its expectation for a correct model: the mean of the same sum over the bootstrap replicates.</param>
+/// <param name="MeanResidual">Mean field residual (model − data) in units of the replicates' RMS residual: positive when the model is too fast.</param>
+/// <param name="PeriodResidual">Residual of the frequency 1/T (model − data) in units of the replicates' RMS; NaN when not used.</param>
 public sealed record RunMisfit(string File, double Param, int Points, double Statistic, double Expected, double MeanResidual, double PeriodResidual)
 {
     /// <summary>Statistic / Expected: about 1 for a correct model.</summary>
@@ -30,8 +33,8 @@ public sealed record RunMisfit(string File, double Param, int Points, double Sta
 /// <param name="To">End of the region.</param>
 /// <param name="Points">Field bins in the region.</param>
 /// <param name="Statistic">Sum of squared standardised residuals.</param>
-/// <param name="Expected">Its expectation for a correct model.</param>
-/// <param name="MeanResidual">Mean standardised residual (model − data): positive when the model is too fast there.</param>
+/// <param name="Expected">Its expectation for a correct model (replicates' mean per point × points).</param>
+/// <param name="MeanResidual">Mean residual (model − data) in units of the replicates' RMS residual: positive when the model is too fast there.</param>
 public sealed record RegionMisfit(double From, double To, int Points, double Statistic, double Expected, double MeanResidual)
 {
     /// <summary>Statistic / Expected: about 1 for a correct model.</summary>
@@ -47,11 +50,11 @@ public sealed record RegionMisfit(double From, double To, int Points, double Sta
 /// <param name="Offset">c₀.</param>
 /// <param name="Scale">c₁.</param>
 /// <param name="Onset">μ_lab where min_θ f reaches 0, with standard error (NaN when the model has no onset in reach).</param>
-/// <param name="OnsetCi95">95% interval of the onset from parameter draws.</param>
+/// <param name="OnsetCi95">95% interval of the onset, onset ± t × SE from the replicates.</param>
 /// <param name="Statistic">Goodness-of-fit statistic Q = Σ r² over all points.</param>
-/// <param name="Expected">E[Q] for a correct model.</param>
-/// <param name="PValue">P(Q' ≥ Q) under the reference distribution of a correct model.</param>
-/// <param name="Consistent">True when PValue ≥ the chosen significance.</param>
+/// <param name="Expected">Mean of Q over the replicates simulated from the fitted model.</param>
+/// <param name="PValue">Monte-Carlo p-value (1 + #{Q* ≥ Q})/(B + 1); NaN when the model stops where a run turns.</param>
+/// <param name="Consistent">True when PValue &gt; the chosen significance.</param>
 /// <param name="Points">Data points fitted.</param>
 /// <param name="Runs">Misfit per run, in input order.</param>
 /// <param name="Regions">Misfit per phase region.</param>
@@ -76,14 +79,11 @@ public sealed record ModelComparison(
     IReadOnlyList<RegionMisfit> WorstRegions,
     IReadOnlyList<Diagnostic> Diagnostics)
 {
-    /// <summary>Effective degrees of freedom h of the scaled χ² reference g·χ²(h).</summary>
-    public double ReferenceDegreesOfFreedom { get; init; }
+    /// <summary>Q of each successful bootstrap replicate: the statistic's distribution for a correct model.</summary>
+    public IReadOnlyList<double> ReplicateStatistics { get; init; } = [];
 
-    /// <summary>Scale g of the scaled χ² reference g·χ²(h).</summary>
-    public double ReferenceScale { get; init; }
-
-    /// <summary>Pooled lag correlations of neighbouring field bins (lag 1, 2, …) used for the reference.</summary>
-    public IReadOnlyList<double> BinCorrelation { get; init; } = [];
+    /// <summary>Replicates that could not be analysed or fitted (counted against the model in the test).</summary>
+    public int FailedReplicates { get; init; }
 
     /// <summary>Levenberg–Marquardt iterations taken.</summary>
     public int Iterations { get; init; }

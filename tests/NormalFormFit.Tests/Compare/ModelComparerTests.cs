@@ -34,25 +34,27 @@ public class ModelComparerTests
 
     private const string TwoHarmonics = "0.05 + 0.9*mu - a*sin(theta) + b*sin(2*theta)";
 
-    [Fact(Skip = "Known failure, not yet calibrated: c1 comes out 3.7 SE from the truth (0.9020 ± 0.0005 against 0.9); the Jacobian SEs are too small for the same reason as the false-rejection failure below.")]
+    [Fact(Skip = "Known failure: with six runs reaching down to μ_lab = 1.15 the bootstrap SEs of a, c0, c1 are about 1.6 times too small (20 seeded repeats, seeds 10000 + 17r + i: RMS z of a = 1.64) and b keeps a residual bias (mean z = -0.5); at this seed b = 0.1182 ± 0.0006 is 3.1 SE from 0.12. The four-run scenario in CalibrationTests is calibrated; see docs/model-expressions.md, Status.")]
     public void Parameters_OfRunsSimulatedFromTheSameExpression_AreRecoveredWithinThreeStandardErrors()
     {
         // The lab μ enters the truth through 0.05 + 0.9μ; the fitted model writes it as c0 + c1·μ.
         var runs = Simulate(TwoHarmonics, new() { ["a"] = 1.0, ["b"] = 0.12 }, 500);
         var c = ModelComparer.Compare(runs, ModelExpression.Parse("mu - a*sin(theta) + b*sin(2*theta)").Value!).Value!;
 
-        // Three SE: four parameters each inside ±3 SE with probability ≥ 0.99 when the SEs are right.
-        void Within(double truth, FittedParameter p) =>
-            Assert.InRange(truth, p.Value - (3 * p.StandardError), p.Value + (3 * p.StandardError));
-        Within(1.0, c.Parameters[0]);
-        Within(0.12, c.Parameters[1]);
-        Within(0.05, c.Offset);
-        Within(0.9, c.Scale);
+        // Three SE: with bootstrap SEs on 18 degrees of freedom, P(|t₁₈| > 3) = 0.008 per parameter when they are
+        // right (Student t; common practice), so five estimates all inside with probability ≥ 0.96.
+        void Within(double truth, double value, double se) =>
+            Assert.InRange(truth, value - (3 * se), value + (3 * se));
+        Within(1.0, c.Parameters[0].Value, c.Parameters[0].StandardError);
+        Within(0.12, c.Parameters[1].Value, c.Parameters[1].StandardError);
+        Within(0.05, c.Offset.Value, c.Offset.StandardError);
+        Within(0.9, c.Scale.Value, c.Scale.StandardError);
         Assert.All(c.Parameters, p => Assert.True(p.StandardError > 0));
 
         // Onset: min_θ(μ − sin θ + 0.12 sin 2θ) = 0, solved by SciPy 1.10.1 brentq/minimize_scalar in
         // Reference/compare_onset.py: μ_model* = 1.027011 → μ_lab = (μ* − 0.05)/0.9.
-        Assert.InRange((1.027011 - 0.05) / 0.9, c.Onset.Value - (3 * c.Onset.StandardError), c.Onset.Value + (3 * c.Onset.StandardError));
+        Within((1.027011 - 0.05) / 0.9, c.Onset.Value, c.Onset.StandardError);
+        Assert.InRange((1.027011 - 0.05) / 0.9, c.OnsetCi95.Low, c.OnsetCi95.High);
     }
 
     [Fact]
@@ -61,26 +63,38 @@ public class ModelComparerTests
         var runs = Simulate(TwoHarmonics, new() { ["a"] = 1.0, ["b"] = 0.12 }, 900);
         var c = ModelComparer.Compare(runs, ModelExpression.Parse("mu - a*sin(theta)").Value!).Value!;
         Assert.False(c.Consistent);
-        Assert.True(c.PValue < 1e-6);
+
+        // The smallest Monte-Carlo p-value with 19 replicates is 1/20; the misfit is far beyond every replicate of
+        // a correct model (a second harmonic of 0.12 against bin SEs of about 0.01).
+        Assert.Equal(0.05, c.PValue, 12);
+        Assert.True(c.Statistic > 10 * c.ReplicateStatistics.Max());
         Assert.Equal(3, c.WorstRuns.Count);
         Assert.Equal(3, c.WorstRegions.Count);
         Assert.True(c.WorstRegions[0].Ratio > 10);
         Assert.Contains(c.Diagnostics, d => d.Code == "model-rejected");
     }
 
-    [Fact(Skip = "Known failure, not yet calibrated: on correct models the lack-of-fit F is 1.5–4.5 instead of about 1, because the reconstructed fields keep a systematic error beyond their bootstrap SEs even after the smoothing-bias correction.")]
-    public void CorrectModel_OverSeededRepeats_IsRejectedInAtMostTwelvePercent()
+    [Fact]
+    public void FirstOrderModel_AgainstRunsOfAnInertialRotor_IsRejected()
     {
-        // 40 repeats at level 5%: a calibrated test rejects ≥ 6 times with probability ≈ 0.05 (binomial), so > 5 fails.
-        var expr = ModelExpression.Parse("mu - a*sin(theta) + b*sin(2*theta)").Value!;
-        var rejected = 0;
-        for (var r = 0; r < 40; r++)
+        // θ̈ + γθ̇ + sin θ = τ with γ = 1 (Simulation/PlanarSystem.cs): inertia delays the speed's response to the
+        // torque, so the speed's swing shrinks as the rotor speeds up and its slowest phase moves past π/2 —
+        // neither fits a first-order θ̇ = μ − a·sin θ with one a for all runs (overdamped limit, γ ≫ 1, only).
+        var rotor = new DampedPendulum(1.0);
+        var torques = new[] { 1.1, 1.2, 1.35, 1.5, 1.7, 2.0 };
+        var runs = torques.Select((tau, i) => SimulatedSet.AnalyzeOne(PlanarSimulator.Run(rotor, new SimulationOptions
         {
-            var c = ModelComparer.Compare(Simulate(TwoHarmonics, new() { ["a"] = 1.0, ["b"] = 0.12 }, 10_000 + (r * 17)), expr).Value!;
-            rejected += c.Consistent ? 0 : 1;
-        }
-
-        Assert.InRange(rejected, 0, 5);
+            Mu = tau,
+            Revolutions = 6,
+            SamplingInterval = 0.05,
+            MeasurementNoise = 0.01,
+            Seed = 700 + i,
+        }))).ToList();
+        var c = ModelComparer.Compare(runs, ModelExpression.Parse("mu - a*sin(theta)").Value!).Value!;
+        Assert.False(c.Consistent);
+        Assert.Equal(0.05, c.PValue, 12);
+        Assert.True(c.Statistic > 3 * c.ReplicateStatistics.Max());
+        Assert.Contains(c.Diagnostics, d => d.Code == "model-rejected");
     }
 
     [Fact]
