@@ -121,52 +121,13 @@ public static class Relaxation
         // κ between one e-fold over 20 tail lengths and 1000 e-folds over the tail.
         var lo = Math.Log(0.05 / span);
         var hi = Math.Log(1000.0 / span);
-        const int grid = 40;
-        var bestK = 0;
-        var bestV = double.PositiveInfinity;
-        for (var k = 0; k < grid; k++)
-        {
-            var v = Rss(lo + ((hi - lo) * k / (grid - 1)));
-            if (v < bestV)
-            {
-                bestV = v;
-                bestK = k;
-            }
-        }
-
-        if (bestK == 0 || bestK == grid - 1)
+        var min = Numerics.GridSearch.Minimize(Rss, lo, hi, 40, 1e-9);
+        if (min.OnEdge)
         {
             return null; // no decay resolved inside the record
         }
 
-        var step = (hi - lo) / (grid - 1);
-        var a = lo + ((bestK - 1) * step);
-        var b = lo + ((bestK + 1) * step);
-        var phi = (Math.Sqrt(5) - 1) / 2;
-        var x1 = b - (phi * (b - a));
-        var x2 = a + (phi * (b - a));
-        double f1 = Rss(x1), f2 = Rss(x2);
-        for (var it = 0; it < 80 && b - a > 1e-9; it++)
-        {
-            if (f1 < f2)
-            {
-                b = x2;
-                x2 = x1;
-                f2 = f1;
-                x1 = b - (phi * (b - a));
-                f1 = Rss(x1);
-            }
-            else
-            {
-                a = x1;
-                x1 = x2;
-                f1 = f2;
-                x2 = a + (phi * (b - a));
-                f2 = Rss(x2);
-            }
-        }
-
-        var kappa = Math.Exp(0.5 * (a + b));
+        var kappa = Math.Exp(min.X);
         var rss = Inner(tt, yy, kappa, out var rest, out var amp);
         if (n <= 3 || !(Math.Abs(amp) > 0))
         {

@@ -88,59 +88,13 @@ public static class PeriodLaws
         // Distances from 10⁻⁶ of the span up to one span beyond the nearest run.
         var lo = Math.Log(1e-6 * span);
         var hi = Math.Log(span);
-        const int grid = 120;
-        var bestK = -1;
-        var bestV = double.PositiveInfinity;
-        for (var k = 0; k < grid; k++)
-        {
-            var v = Rss(lo + ((hi - lo) * k / (grid - 1)));
-            if (v < bestV)
-            {
-                bestV = v;
-                bestK = k;
-            }
-        }
-
-        if (bestK < 0)
+        var min = Numerics.GridSearch.Minimize(Rss, lo, hi, 120, 1e-10);
+        if (min.GridIndex < 0)
         {
             return new PeriodLawFit(law, double.NaN, double.PositiveInfinity, double.PositiveInfinity, false);
         }
 
-        var step = (hi - lo) / (grid - 1);
-        var a = lo + (Math.Max(bestK - 1, 0) * step);
-        var b = lo + (Math.Min(bestK + 1, grid - 1) * step);
-        var phi = (Math.Sqrt(5) - 1) / 2;
-        var x1 = b - (phi * (b - a));
-        var x2 = a + (phi * (b - a));
-        double f1 = Rss(x1), f2 = Rss(x2);
-        for (var it = 0; it < 100 && b - a > 1e-10; it++)
-        {
-            if (f1 < f2)
-            {
-                b = x2;
-                x2 = x1;
-                f2 = f1;
-                x1 = b - (phi * (b - a));
-                f1 = Rss(x1);
-            }
-            else
-            {
-                a = x1;
-                x1 = x2;
-                f1 = f2;
-                x2 = a + (phi * (b - a));
-                f2 = Rss(x2);
-            }
-        }
-
-        var best = 0.5 * (a + b);
-        var rss = Math.Min(Rss(best), bestV);
-        if (bestV <= Rss(best))
-        {
-            best = lo + (bestK * step);
-        }
-
-        return new PeriodLawFit(law, edge - (side * Math.Exp(best)), rss, Aic(rss, pts.Length), bestK == grid - 1);
+        return new PeriodLawFit(law, edge - (side * Math.Exp(min.X)), min.Value, Aic(min.Value, pts.Length), min.GridIndex == min.GridPoints - 1);
     }
 
     private static double Linear(PeriodPoint[] pts, double[] sig, Func<double, double[]> basis, out double[] coef)

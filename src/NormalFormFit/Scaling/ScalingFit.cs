@@ -127,57 +127,15 @@ public static class ScalingFit
     {
         double Chi2(double muc) => Inner(pts, side, muc, corrections, out _);
 
-        // Grid over the distance of μc beyond the nearest run, then golden section.
-        const int grid = 80;
-        var dMin = 1e-6 * span;
-        var dMax = 20 * span;
-        var bestK = -1;
-        var bestV = double.PositiveInfinity;
-        var ds = new double[grid];
-        for (var k = 0; k < grid; k++)
-        {
-            ds[k] = dMin * Math.Pow(dMax / dMin, k / (grid - 1.0));
-            var v = Chi2(edge - (side * ds[k]));
-            if (v < bestV)
-            {
-                bestV = v;
-                bestK = k;
-            }
-        }
-
-        if (bestK < 0)
+        // Grid over log of the distance of μc beyond the nearest run, then Brent.
+        var min = Numerics.GridSearch.Minimize(
+            logd => Chi2(edge - (side * Math.Exp(logd))), Math.Log(1e-6 * span), Math.Log(20 * span), 80, 1e-10);
+        if (min.GridIndex < 0)
         {
             return null;
         }
 
-        var lo = Math.Log(ds[Math.Max(bestK - 1, 0)]);
-        var hi = Math.Log(ds[Math.Min(bestK + 1, grid - 1)]);
-        double G(double logd) => Chi2(edge - (side * Math.Exp(logd)));
-        var phi = (Math.Sqrt(5) - 1) / 2;
-        var x1 = hi - (phi * (hi - lo));
-        var x2 = lo + (phi * (hi - lo));
-        double f1 = G(x1), f2 = G(x2);
-        for (var it = 0; it < 100 && hi - lo > 1e-10; it++)
-        {
-            if (f1 < f2)
-            {
-                hi = x2;
-                x2 = x1;
-                f2 = f1;
-                x1 = hi - (phi * (hi - lo));
-                f1 = G(x1);
-            }
-            else
-            {
-                lo = x1;
-                x1 = x2;
-                f1 = f2;
-                x2 = lo + (phi * (hi - lo));
-                f2 = G(x2);
-            }
-        }
-
-        var muc = edge - (side * Math.Exp(0.5 * (lo + hi)));
+        var muc = edge - (side * Math.Exp(min.X));
         var chi2 = Inner(pts, side, muc, corrections, out var coef);
         var p = 3 + corrections;
         var n = pts.Length;
