@@ -14,7 +14,12 @@ public class BelowOnsetTests(ITestOutputHelper output)
     {
         var runs = mus.Select((mu, i) => SimulatedSet.AnalyzeOne(Simulator.Run(BuiltInModels.Rotor, new SimulationOptions
         {
-            Mu = mu, Revolutions = 5, SamplingInterval = 0.02, MeasurementNoise = 0.01, MaxDuration = 150, Seed = GaussianSource.DeriveSeed(seed, i),
+            Mu = mu,
+            Revolutions = 5,
+            SamplingInterval = 0.02,
+            MeasurementNoise = 0.01,
+            MaxDuration = 150,
+            Seed = GaussianSource.DeriveSeed(seed, i),
         }))).ToList();
         return OnsetAnalysis.Combine(runs);
     }
