@@ -62,7 +62,7 @@ public static class TextReport
                 p is null ? "–" : G(p.FromField.Value, 5),
                 (p?.Revolutions ?? 0).ToString(Inv),
                 r.Relaxation is { } x ? G(x.Rate.Value, 4) : "–",
-                r.Noise is { } nz ? G(nz.Diffusion.Value, 2) : "–",
+                r.Noise is { } nz ? Diffusion(nz.Diffusion) : "–",
                 r.Flags.Count == 0 ? "ok" : string.Join(",", r.Flags),
             ]);
         }
@@ -160,6 +160,12 @@ public static class TextReport
         return string.Create(Inv,
             $"{label}μc = {ReportNumbers.WithError(e.Value, e.StandardError)}{units}  95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}  ({e.Runs} runs, trend degree {e.Trend?.Degree})");
     }
+
+    // D within two standard errors of zero is shown as an upper bound: a negative estimate of a variance means "not resolved".
+    private static string Diffusion(Estimate d) =>
+        double.IsFinite(d.StandardError) && d.Value < 2 * d.StandardError
+            ? "<" + G(Math.Max(d.Value, 0) + (2 * d.StandardError), 1)
+            : G(d.Value, 2);
 
     private static string G(double x, int digits) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
 
