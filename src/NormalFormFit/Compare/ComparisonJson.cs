@@ -81,11 +81,7 @@ public static class ComparisonJson
         w.WriteStartArray("diagnostics");
         foreach (var d in c.Diagnostics)
         {
-            w.WriteStartObject();
-            w.WriteString("severity", d.Severity.ToString().ToLowerInvariant());
-            w.WriteString("code", d.Code);
-            w.WriteString("message", d.Message);
-            w.WriteEndObject();
+            Reporting.JsonReport.WriteDiagnostic(w, d);
         }
 
         w.WriteEndArray();
@@ -130,15 +126,5 @@ public static class ComparisonJson
         w.WriteEndObject();
     }
 
-    private static void Number(Utf8JsonWriter w, string name, double value)
-    {
-        if (double.IsFinite(value))
-        {
-            w.WriteNumber(name, value);
-        }
-        else
-        {
-            w.WriteNull(name);
-        }
-    }
+    private static void Number(Utf8JsonWriter w, string name, double value) => Reporting.JsonReport.Number(w, name, value);
 }

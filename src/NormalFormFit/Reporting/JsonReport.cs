@@ -292,7 +292,8 @@ public static class JsonReport
         }
     }
 
-    private static void Number(Utf8JsonWriter w, string name, double v)
+    /// <summary>Writes a number, or null when it is not finite (the report's convention for "not estimated").</summary>
+    internal static void Number(Utf8JsonWriter w, string name, double v)
     {
         if (double.IsFinite(v))
         {
