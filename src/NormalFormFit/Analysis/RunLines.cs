@@ -88,11 +88,7 @@ public static class RunLines
             {
                 return Loaded.Fail<RunSet>(BadLine(path, lineNumber, $"a number is malformed ({e.Message})"));
             }
-            catch (IOException e)
-            {
-                return Loaded.Fail<RunSet>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the file: {e.Message}", path));
-            }
-            catch (UnauthorizedAccessException e)
+            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
             {
                 return Loaded.Fail<RunSet>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the file: {e.Message}", path));
             }

@@ -31,11 +31,7 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
             using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read);
             return Read(stream, path);
         }
-        catch (IOException e)
-        {
-            return Loaded.Fail<Manifest>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the manifest: {e.Message}", path));
-        }
-        catch (UnauthorizedAccessException e)
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
             return Loaded.Fail<Manifest>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the manifest: {e.Message}", path));
         }

@@ -90,11 +90,7 @@ public static class RunReader
             using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, 1 << 16);
             return ReadRecording(stream, name, options);
         }
-        catch (IOException e)
-        {
-            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the file: {e.Message}", name));
-        }
-        catch (UnauthorizedAccessException e)
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
             return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "unreadable", $"cannot read the file: {e.Message}", name));
         }
