@@ -41,7 +41,10 @@ public static class OnsetAnalysis
     /// Noise-dominated runs are left out of both routes while three runs remain. Runs below onset enter the period route
     /// through their relaxation rate: near the stable node κ²/4 = −ab, so −κ²/(4π²) continues T⁻² = ab/π² linearly
     /// through μc (Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., §4.3); they are kept only near onset and on the
-    /// resting side, and dropped when they do not follow the trend. The kind of onset decides whether each route applies.
+    /// resting side, and dropped when they do not follow the trend. The period route may instead use the square-root law
+    /// with an offset, T = α(μ − μc)^−½ + β, when AICc prefers it on the turning runs (<see cref="PeriodRoute"/>); runs
+    /// below onset, which have no period, then re-enter through the polynomial trend. The kind of onset decides whether
+    /// each route applies.
     /// </remarks>
     public static AnalysisReport Combine(IReadOnlyList<RunResult> runs)
     {
@@ -69,12 +72,12 @@ public static class OnsetAnalysis
         }
 
         var fromA = TrendFit.Root("bottleneck", aPoints);
-        var fromT = TrendFit.Root("period", tPoints);
+        var fromT = PeriodRoute.Estimate(tPoints);
 
         // Runs below onset: relaxation rates continue the period trend through μc.
         var resting = runs.Where(r => !r.IsTurning && r.Relaxation is { } x && x.Rate.StandardError > 0 && x.Rate.StandardError < 0.5 * x.Rate.Value).ToList();
         var below = new List<RunResult>();
-        if (resting.Count > 0 && fromT.IsAvailable && fromT.Trend is { } tt && tPoints.Count >= MinimumRuns)
+        if (resting.Count > 0 && fromT.IsAvailable && fromT.Curve is { } tt && tPoints.Count >= MinimumRuns)
         {
             var side = Math.Sign(tt.Slope(fromT.Value));
             var span = tPoints.Max(p => p.Mu) - tPoints.Min(p => p.Mu);
@@ -86,7 +89,9 @@ public static class OnsetAnalysis
                     var e = r.Relaxation!.SquaredRateOverFourPiSquared;
                     return new TrendPoint(r.Param, -e.Value, e.StandardError);
                 }).ToList();
-                var withBelow = TrendFit.Root("period", tPoints, extraPoints: extra);
+                // The square-root law has no place for a relaxation rate (no period): with runs below onset the route
+                // uses the polynomial trend through them, which brackets the onset instead of extrapolating to it.
+                var withBelow = TrendFit.Root(PeriodRoute.Route, tPoints, extraPoints: extra);
                 if (withBelow.IsAvailable && withBelow.Trend is { } wt && extra.All(p => Math.Abs(p.Y - wt.Evaluate(p.Mu)) <= 4 * Math.Sqrt((p.StandardError * p.StandardError * Math.Max(wt.ReducedChiSquare, 1)) + wt.Variance(p.Mu))))
                 {
                     fromT = withBelow with { RunsBelowOnset = extra.Count };
@@ -147,7 +152,7 @@ public static class OnsetAnalysis
             {
                 if (MeasurementPlanner.Suggest(est, pts) is { } s)
                 {
-                    var y = fromT.Trend?.Evaluate(s.Param) ?? double.NaN;
+                    var y = fromT.Curve?.Evaluate(s.Param) ?? double.NaN;
                     next.Add(s with { ExpectedPeriod = y > 0 ? 1 / Math.Sqrt(y) : double.NaN });
                 }
             }
@@ -181,7 +186,7 @@ public static class OnsetAnalysis
     /// <summary>Flags resting runs on the turning side of the onset (and turning runs beyond resting ones) as bistable.</summary>
     private static IReadOnlyList<RunResult> FlagBistable(IReadOnlyList<RunResult> runs, OnsetEstimate fromT, List<Diagnostic> diags)
     {
-        if (!fromT.IsAvailable || fromT.Trend is not { } trend)
+        if (!fromT.IsAvailable || fromT.Curve is not { } trend)
         {
             return runs;
         }

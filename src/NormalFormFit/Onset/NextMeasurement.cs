@@ -18,8 +18,9 @@ public sealed record NextMeasurement(string Route, double Param, int Runs, Inter
 /// <summary>
 /// Chooses the parameter value whose new runs shrink a route's onset interval most, from the fitted trend and its
 /// error model. Design criterion: after adding m runs at μ with the error σ(μ) predicted by a log-linear fit of the
-/// per-run errors, the covariance is (XᵀWX + m g gᵀ/σ²)⁻¹ times the current Birge scale; the delta-method half-width
-/// t·sd(y(μc))/|y′(μc)| of the onset is minimised over μ (c-optimal design for the root; Atkinson, Donev &amp; Tobias,
+/// per-run errors, the covariance is (XᵀWX + m g gᵀ/σ²)⁻¹ times the current Birge scale (g the gradient of the fitted
+/// quantity: the polynomial basis, or for the square-root law the Jacobian row of T with σ carried to T); the
+/// delta-method half-width t·sd(μc) of the onset (for a polynomial t·sd(y(μc))/|y′(μc)|) is minimised over μ (c-optimal design for the root; Atkinson, Donev &amp; Tobias,
 /// Optimum Experimental Designs, 2007, §10). Candidates lie on the turning side between half the nearest run's distance
 /// to μc (the error model is not extrapolated further) and the farthest run. O(candidates × p³).
 /// </summary>
@@ -30,19 +31,21 @@ public static class MeasurementPlanner
     {
         ArgumentNullException.ThrowIfNull(estimate);
         ArgumentNullException.ThrowIfNull(points);
-        if (!estimate.IsAvailable || estimate.Trend is not { } trend || points.Count < 3 || runs < 1)
+        if (!estimate.IsAvailable || estimate.Curve is not { } trend || points.Count < 3 || runs < 1)
         {
             return null;
         }
 
+        // Information of the runs on the fit's own scale (y for a polynomial, T for the square-root law).
         var smoothed = TrendFit.SmoothErrors(points);
         var logs = points.Select(p => new TrendPoint(p.Mu, Math.Log(p.StandardError), 1.0)).ToList();
         var errorModel = TrendFit.Fit(logs, 1);
-        var p = trend.Coefficients.Length;
+        var p = trend.ParameterCount;
         var m0 = Matrix<double>.Build.Dense(p, p);
         foreach (var q in smoothed)
         {
-            AddOuter(m0, Basis(q.Mu - trend.Origin, p), 1.0 / (q.StandardError * q.StandardError));
+            var sigma = trend.FitError(q.Mu, q.StandardError);
+            AddOuter(m0, Vector<double>.Build.DenseOfArray(trend.FitGradient(q.Mu)), 1.0 / (sigma * sigma));
         }
 
         var root = estimate.Value;
@@ -59,14 +62,15 @@ public static class MeasurementPlanner
             return null;
         }
 
+        // Half-width t·sd(μc): sd² = hᵀ C h with h = dμc/dθ (for a polynomial −g(μc)/y′(μc), the delta method).
         var scale = trend.Scaled ? trend.ReducedChiSquare : 1.0;
-        var gc = Basis(root - trend.Origin, p);
+        var h = Vector<double>.Build.DenseOfArray(trend.RootGradient(root));
         double HalfWidth(Matrix<double> info, int dof)
         {
             var cov = info.Inverse() * scale;
-            var v = gc.DotProduct(cov * gc);
+            var v = h.DotProduct(cov * h);
             var t = dof > 0 ? StudentT.InvCDF(0, 1, dof, 0.975) : Normal.InvCDF(0, 1, 0.975);
-            return t * Math.Sqrt(Math.Max(v, 0)) / Math.Abs(slope);
+            return t * Math.Sqrt(Math.Max(v, 0));
         }
 
         var current = HalfWidth(m0, trend.DegreesOfFreedom);
@@ -79,9 +83,9 @@ public static class MeasurementPlanner
         {
             var d = dLo * Math.Pow(dHi / dLo, k / (candidates - 1.0));
             var mu = root + (side * d);
-            var sigma = Math.Exp(errorModel.Evaluate(mu));
+            var sigma = trend.FitError(mu, Math.Exp(errorModel.Evaluate(mu)));
             var info = m0.Clone();
-            AddOuter(info, Basis(mu - trend.Origin, p), runs / (sigma * sigma));
+            AddOuter(info, Vector<double>.Build.DenseOfArray(trend.FitGradient(mu)), runs / (sigma * sigma));
             var half = HalfWidth(info, trend.DegreesOfFreedom + runs);
             if (half < bestHalf)
             {
@@ -93,19 +97,6 @@ public static class MeasurementPlanner
         return double.IsFinite(bestHalf)
             ? new NextMeasurement(estimate.Route, bestMu, runs, new Interval(root - current, root + current), new Interval(root - bestHalf, root + bestHalf))
             : null;
-    }
-
-    private static Vector<double> Basis(double x, int p)
-    {
-        var g = Vector<double>.Build.Dense(p);
-        var v = 1.0;
-        for (var k = 0; k < p; k++)
-        {
-            g[k] = v;
-            v *= x;
-        }
-
-        return g;
     }
 
     private static void AddOuter(Matrix<double> m, Vector<double> g, double w)

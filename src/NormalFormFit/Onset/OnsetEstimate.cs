@@ -7,13 +7,31 @@ namespace NormalFormFit.Onset;
 /// <param name="ReducedChiSquare">χ²/(n − p) against the per-run standard errors.</param>
 /// <param name="DegreesOfFreedom">n − p.</param>
 /// <param name="Scaled">True when the covariance was scaled by the reduced χ² (Birge ratio) and Student-t quantiles apply.</param>
-public sealed record Trend(double[] Coefficients, double[,] Covariance, double Origin, double ReducedChiSquare, int DegreesOfFreedom, bool Scaled)
+public sealed record Trend(double[] Coefficients, double[,] Covariance, double Origin, double ReducedChiSquare, int DegreesOfFreedom, bool Scaled) : OnsetCurve
 {
+    /// <inheritdoc/>
+    public override double ReducedChiSquare { get; init; } = ReducedChiSquare;
+
+    /// <inheritdoc/>
+    public override int DegreesOfFreedom { get; init; } = DegreesOfFreedom;
+
+    /// <inheritdoc/>
+    public override bool Scaled { get; init; } = Scaled;
+
+    /// <inheritdoc/>
+    public override string Law => OnsetLaws.Polynomial;
+
+    /// <inheritdoc/>
+    public override string Description => Degree == 1 ? "weighted straight line" : $"weighted polynomial, degree {Degree}";
+
+    /// <inheritdoc/>
+    internal override int ParameterCount => Coefficients.Length;
+
     /// <summary>Polynomial degree.</summary>
     public int Degree => Coefficients.Length - 1;
 
     /// <summary>y(μ).</summary>
-    public double Evaluate(double mu)
+    public override double Evaluate(double mu)
     {
         var x = mu - Origin;
         var y = 0.0;
@@ -26,7 +44,7 @@ public sealed record Trend(double[] Coefficients, double[,] Covariance, double O
     }
 
     /// <summary>dy/dμ.</summary>
-    public double Slope(double mu)
+    public override double Slope(double mu)
     {
         var x = mu - Origin;
         var y = 0.0;
@@ -39,7 +57,7 @@ public sealed record Trend(double[] Coefficients, double[,] Covariance, double O
     }
 
     /// <summary>Variance of y(μ) from the coefficient covariance.</summary>
-    public double Variance(double mu)
+    public override double Variance(double mu)
     {
         var x = mu - Origin;
         var p = Coefficients.Length;
@@ -61,18 +79,50 @@ public sealed record Trend(double[] Coefficients, double[,] Covariance, double O
 
         return Math.Max(v, 0);
     }
+
+    /// <inheritdoc/>
+    internal override double[] FitGradient(double mu)
+    {
+        var g = new double[Coefficients.Length];
+        var x = mu - Origin;
+        var v = 1.0;
+        for (var k = 0; k < g.Length; k++)
+        {
+            g[k] = v;
+            v *= x;
+        }
+
+        return g;
+    }
+
+    /// <inheritdoc/>
+    internal override double FitError(double mu, double routeError) => routeError;
+
+    /// <inheritdoc/>
+    internal override double[] RootGradient(double root)
+    {
+        // Implicit root y(μc; c) = 0: dμc/dc = −(∂y/∂c)/y′(μc) (delta method, as in the onset's standard error).
+        var slope = Slope(root);
+        return [.. FitGradient(root).Select(g => -g / slope)];
+    }
 }
 
 /// <summary>An onset estimate μc from one route.</summary>
 /// <param name="Route">"bottleneck" (a → 0) or "period" (T⁻² → 0).</param>
 /// <param name="Value">μc.</param>
-/// <param name="StandardError">Delta-method standard error, sd(y(μc))/|y′(μc)|.</param>
-/// <param name="Ci95">95% interval by inverting the test of y(μ) = 0 (Fieller 1954 for a straight line).</param>
+/// <param name="StandardError">Delta-method standard error, sd(y(μc))/|y′(μc)| (for the square-root law: from the
+/// Jacobian of all its parameters).</param>
+/// <param name="Ci95">95% interval by inverting the test of y(μ) = 0 (Fieller 1954 for a straight line; profile
+/// likelihood for the square-root law).</param>
 /// <param name="Runs">Runs used.</param>
-/// <param name="Trend">The fitted trend.</param>
+/// <param name="Curve">The fitted curve: a polynomial <see cref="Onset.Trend"/>, or for the period route possibly the
+/// square-root law with an offset (<see cref="SquareRootPeriodLaw"/>).</param>
 /// <param name="Diagnostics">What qualifies the estimate.</param>
-public sealed record OnsetEstimate(string Route, double Value, double StandardError, Interval Ci95, int Runs, Trend? Trend, IReadOnlyList<Diagnostic> Diagnostics)
+public sealed record OnsetEstimate(string Route, double Value, double StandardError, Interval Ci95, int Runs, OnsetCurve? Curve, IReadOnlyList<Diagnostic> Diagnostics)
 {
+    /// <summary>The fitted polynomial trend (null when the route chose another law; see <see cref="Curve"/>).</summary>
+    public Trend? Trend => Curve as Trend;
+
     /// <summary>True when a finite value was obtained.</summary>
     public bool IsAvailable => double.IsFinite(Value);
 

@@ -111,6 +111,12 @@ public static class JsonReport
         Number(w, "ci95_high", e.Ci95.High);
         w.WriteNumber("runs", e.Runs);
         Number(w, "trend_degree", e.Trend?.Degree ?? double.NaN);
+        if (e.Curve is { } curve)
+        {
+            // Additive key: "polynomial" (trend_degree tells which) or "square-root-with-offset" (trend_degree null).
+            w.WriteString("law", curve.Law);
+            w.WriteString("law_description", curve.Description);
+        }
         w.WriteString("status", e.Status);
         if (e.StatusReason is { } why)
         {

@@ -158,8 +158,15 @@ public static class TextReport
         }
 
         return string.Create(Inv,
-            $"{label}μc = {ReportNumbers.WithError(e.Value, e.StandardError)}{units}  95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}  ({e.Runs} runs, trend degree {e.Trend?.Degree})");
+            $"{label}μc = {ReportNumbers.WithError(e.Value, e.StandardError)}{units}  95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}  ({e.Runs} runs, {Law(e)})");
     }
+
+    private static string Law(OnsetEstimate e) => e.Curve switch
+    {
+        Trend t => string.Create(Inv, $"trend degree {t.Degree}"),
+        { } c => "law " + c.Description,
+        null => "no trend",
+    };
 
     // D within two standard errors of zero is shown as an upper bound: a negative estimate of a variance means "not resolved".
     private static string Diffusion(Estimate d) =>

@@ -21,6 +21,7 @@ public class BelowOnsetCalibrationTests(ITestOutputHelper output)
         double[] resting = [0.97, 0.99];
         var covered = 0;
         var used = 0;
+        var law = 0;
         var z = new List<double>();
         for (var r = 0; r < Repeats; r++)
         {
@@ -45,12 +46,13 @@ public class BelowOnsetCalibrationTests(ITestOutputHelper output)
             var e = report.FromPeriod;
             Assert.True(e.IsAvailable);
             used += e.RunsBelowOnset > 0 ? 1 : 0;
+            law += e.Curve is NormalFormFit.Onset.SquareRootPeriodLaw ? 1 : 0;
             covered += e.Ci95.Contains(1.0) ? 1 : 0;
             z.Add((e.Value - 1.0) / e.StandardError);
         }
 
         var mean = z.Average();
-        output.WriteLine($"period route with resting runs: coverage {covered}/{Repeats}; resting runs used in {used} repeats; mean z {mean:F2}, sd z {Math.Sqrt(z.Sum(x => (x - mean) * (x - mean)) / (z.Count - 1)):F2}");
+        output.WriteLine($"period route with resting runs: coverage {covered}/{Repeats}; resting runs used in {used} repeats; square-root law chosen in {law}; mean z {mean:F2}, sd z {Math.Sqrt(z.Sum(x => (x - mean) * (x - mean)) / (z.Count - 1)):F2}");
         Assert.True(used >= Repeats / 2, $"resting runs entered the fit in only {used} of {Repeats} repeats");
         Assert.InRange(covered / (double)Repeats, 0.90, 0.98);
     }

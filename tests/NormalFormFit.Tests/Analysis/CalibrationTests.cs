@@ -1,3 +1,4 @@
+using NormalFormFit.Onset;
 using NormalFormFit.Simulation;
 using Xunit.Abstractions;
 
@@ -31,6 +32,8 @@ public class CalibrationTests(ITestOutputHelper output)
         var nT = 0;
         var errA = new List<double>();
         var errT = new List<double>();
+        var lawT = 0;
+        var lawCoverT = 0;
         for (var r = 0; r < Repeats; r++)
         {
             var template = new SimulationOptions { Revolutions = 5, SamplingInterval = 0.02, MeasurementNoise = 0.01, Seed = 1000 + (r * 37) };
@@ -46,12 +49,17 @@ public class CalibrationTests(ITestOutputHelper output)
             {
                 nT++;
                 coverT += report.FromPeriod.Ci95.Contains(truth) ? 1 : 0;
+                if (report.FromPeriod.Curve is SquareRootPeriodLaw)
+                {
+                    lawT++;
+                    lawCoverT += report.FromPeriod.Ci95.Contains(truth) ? 1 : 0;
+                }
                 errT.Add((report.FromPeriod.Value - truth) / report.FromPeriod.StandardError);
             }
         }
 
         output.WriteLine($"{modelName}: bottleneck coverage {coverA}/{nA}, mean z {errA.Average():F2}, sd z {Sd(errA):F2}");
-        output.WriteLine($"{modelName}: period coverage {coverT}/{nT}, mean z {errT.Average():F2}, sd z {Sd(errT):F2}");
+        output.WriteLine($"{modelName}: period coverage {coverT}/{nT}, mean z {errT.Average():F2}, sd z {Sd(errT):F2}; square-root law chosen in {lawT} repeats, covering in {lawCoverT}");
         Assert.Equal(Repeats, nA);
         Assert.Equal(Repeats, nT);
         Assert.InRange(coverA / (double)Repeats, 0.90, 0.98);

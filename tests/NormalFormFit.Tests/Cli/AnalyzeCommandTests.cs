@@ -30,6 +30,10 @@ public class AnalyzeCommandTests
             var v = o.GetProperty("value").GetDouble();
             Assert.InRange(v, 0.99, 1.01); // rotor onset μc = 1 (Adler 1946)
             Assert.True(o.GetProperty("ci95_low").GetDouble() <= v && v <= o.GetProperty("ci95_high").GetDouble());
+
+            // Additive keys beside trend_degree: the law of the fitted curve.
+            Assert.Contains(o.GetProperty("law").GetString(), new[] { "polynomial", "square-root-with-offset" });
+            Assert.False(string.IsNullOrEmpty(o.GetProperty("law_description").GetString()));
         }
 
         Assert.Equal(JsonValueKind.Number, root.GetProperty("onset").GetProperty("agreement").GetProperty("z").ValueKind);

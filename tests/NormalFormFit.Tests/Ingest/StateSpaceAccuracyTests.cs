@@ -1,5 +1,6 @@
 using NormalFormFit.Analysis;
 using NormalFormFit.Ingest;
+using NormalFormFit.Onset;
 using NormalFormFit.Simulation;
 using Xunit.Abstractions;
 
@@ -64,9 +65,12 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
         var report = OnsetAnalysis.Combine(runs);
         Log(onset, report);
         var span = currents[^1] - currents[0];
-        // Requirement of the issue: within 2% of the span of the run parameters, by both routes.
+        // Requirement of the issue: within 2% of the span of the run parameters, by both routes. The period route fits
+        // T = α(μ−μc)^−½ + β + γ(μ−μc)^½ here (the spike adds a nearly constant time): its error is 1.2·10⁻³, 0.02% of the
+        // span (the polynomial in T⁻² was 0.031 off); 0.1% leaves a factor five.
         Assert.InRange(Math.Abs(report.FromBottleneck.Value - onset), 0, 0.02 * span);
-        Assert.InRange(Math.Abs(report.FromPeriod.Value - onset), 0, 0.02 * span);
+        Assert.InRange(Math.Abs(report.FromPeriod.Value - onset), 0, 0.001 * span);
+        Assert.Equal(OnsetLaws.SquareRootWithOffset, report.FromPeriod.Curve?.Law);
         // The (V, w) orbit is not an ellipse: the phase is a protophase and the report says so.
         Assert.All(report.Runs, r => Assert.Contains(RunFlags.NotAnEllipse, r.Flags));
         Assert.All(report.Runs, r => Assert.Contains(r.Diagnostics, d => d.Code == "not-an-ellipse" && d.Message.Contains("protophase", StringComparison.Ordinal)));
@@ -82,8 +86,29 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
         var span = currents[^1] - currents[0];
         Assert.False(report.FromBottleneck.IsAvailable);
         Assert.Contains(report.Diagnostics, d => d.Code == "bottleneck-not-available");
-        Assert.InRange(Math.Abs(report.FromPeriod.Value - onset), 0, 0.02 * span);
+        Assert.InRange(Math.Abs(report.FromPeriod.Value - onset), 0, 0.001 * span);
+        Assert.Equal(OnsetLaws.SquareRootWithOffset, report.FromPeriod.Curve?.Law);
         Assert.True(double.IsFinite(report.FromPeriod.Ci95.Low) && double.IsFinite(report.FromPeriod.Ci95.High));
+    }
+
+    /// <summary>
+    /// Known gap: the period route's interval still misses the Morris–Lecar onset. The periods are nearly noise-free, so
+    /// what remains is the truncation of T = Σ cₖd^((k−1)/2): with 8 runs AICc keeps three terms (estimate 39.9620,
+    /// interval [39.9613, 39.9626] against 39.9632); the Birge ratio (≈ 57) widens the interval but treats the smooth
+    /// misfit as scatter. Five terms would cover (two residual degrees of freedom), which no information criterion
+    /// chooses with eight runs. See docs/methods.md, "Period route: the square-root law".
+    /// </summary>
+    [Theory(Skip = "known limitation: truncation error of the period law exceeds the Birge-scaled interval for near-noise-free periods (docs/methods.md)")]
+    [InlineData(true)]
+    [InlineData(false)]
+    public void PeriodInterval_CoversTheMorrisLecarOnset(bool spikeTimes)
+    {
+        var (onset, positions, spikes, currents) = Runs.Value;
+        var runs = (spikeTimes ? spikes : positions)
+            .Select((p, i) => RecordingAnalyzer.Analyze(p, currents[i], p.Events?.File ?? p.Positions!.File, null, null, []).Value!).ToList();
+        var report = OnsetAnalysis.Combine(runs);
+        Log(onset, report);
+        Assert.True(report.FromPeriod.Ci95.Contains(onset));
     }
 
     private void Log(double onset, AnalysisReport report)

@@ -166,18 +166,28 @@ public static class ReportFigures
         var xMax = Math.Min(xs.Max(), pts.Max(p => p.Mu) + dataSpan);
         var pad = 0.04 * Math.Max(xMax - xMin, 1e-12);
 
-        if (estimate.Trend is { } trend)
+        if (estimate.Curve is { } trend)
         {
+            // The chosen law on the route's scale; the square-root law exists only on the turning side of its μc.
             var q = trend.Scaled && trend.DegreesOfFreedom > 0 ? StudentT.InvCDF(0, 1, trend.DegreesOfFreedom, 0.975) : 1.959964;
-            var gx = Grid(xMin - pad, xMax + pad, 200);
-            var fill = plot.Add.FillY(gx, gx.Select(x => trend.Evaluate(x) - (q * Math.Sqrt(trend.Variance(x)))).ToArray(),
-                gx.Select(x => trend.Evaluate(x) + (q * Math.Sqrt(trend.Variance(x)))).ToArray());
-            fill.FillColor = colour.WithAlpha(0.18);
-            fill.LineWidth = 0;
-            fill.LegendText = "95% band of the trend";
-            var line = plot.Add.ScatterLine(gx, gx.Select(trend.Evaluate).ToArray(), colour);
-            line.LineWidth = 2;
-            line.LegendText = trend.Degree == 1 ? "weighted straight line" : $"weighted polynomial, degree {trend.Degree}";
+            // Points crowd toward the onset on a log scale so that a square-root law reaches its zero visibly.
+            var near = estimate.IsAvailable
+                ? Enumerable.Range(0, 40).SelectMany(k => new[] { -1.0, 1.0 }.Select(sg => estimate.Value + (sg * (xMax - xMin + (2 * pad)) * Math.Pow(10, -k / 8.0))))
+                    .Append(estimate.Value)
+                : [];
+            var gx = Grid(xMin - pad, xMax + pad, 200).Concat(near.Where(x => x >= xMin - pad && x <= xMax + pad)).Order()
+                .Where(x => double.IsFinite(trend.Evaluate(x)) && double.IsFinite(trend.Variance(x))).ToArray();
+            if (gx.Length > 1)
+            {
+                var fill = plot.Add.FillY(gx, gx.Select(x => trend.Evaluate(x) - (q * Math.Sqrt(trend.Variance(x)))).ToArray(),
+                    gx.Select(x => trend.Evaluate(x) + (q * Math.Sqrt(trend.Variance(x)))).ToArray());
+                fill.FillColor = colour.WithAlpha(0.18);
+                fill.LineWidth = 0;
+                fill.LegendText = "95% band of the trend";
+                var line = plot.Add.ScatterLine(gx, gx.Select(trend.Evaluate).ToArray(), colour);
+                line.LineWidth = 2;
+                line.LegendText = trend.Description;
+            }
         }
 
         var zero = plot.Add.HorizontalLine(0, 1, FigurePalette.Reference, LinePattern.Solid);
@@ -204,8 +214,10 @@ public static class ReportFigures
                 "it crosses zero: the onset by the field route (blue circle, 95% interval by Fieller's theorem as a bar). The onset by " +
                 "the period route is drawn below it (amber square) for comparison.", plot)
             : new Figure("trend-period", "Onset from the periods (T⁻² → 0)",
-                "1/T² of each run (± 1 standard error) against μ, the weighted trend with its 95% band, and its zero: the onset by the " +
-                "period route (amber square with its 95% interval). The field-route onset (blue circle) is shown for comparison.", plot);
+                "1/T² of each run (± 1 standard error) against μ, the fitted law with its 95% band, and its zero: the onset by the " +
+                "period route (amber square with its 95% interval). The law is a weighted polynomial in μ, or T = α(μ−μc)^−½ + β " +
+                "(the bottleneck passage plus a constant excursion time) drawn as 1/T², whichever AICc prefers. The field-route onset " +
+                "(blue circle) is shown for comparison.", plot);
     }
 
     /// <summary>Figure 4: log T against log(μ − μc) with the fitted law and the reference slope −½.</summary>

@@ -142,7 +142,12 @@ public static partial class HtmlReport
         sb.Append("<td class=\"num\">").Append(WithError(e.Value, e.StandardError)).Append(units).Append("</td>")
           .Append("<td class=\"num\">").Append(Interval(e.Ci95, e.StandardError)).Append(units).Append("</td>")
           .Append("<td class=\"num\">").Append(e.Runs.ToString(Inv)).Append("</td>")
-          .Append("<td>").Append(e.Trend is { } t ? (t.Degree == 1 ? "straight line" : "degree " + t.Degree.ToString(Inv)) : "–").Append("</td></tr>\n");
+          .Append("<td>").Append(e.Curve switch
+          {
+              Trend t => t.Degree == 1 ? "straight line" : "degree " + t.Degree.ToString(Inv),
+              { } c => E(c.Description),
+              null => "–",
+          }).Append("</td></tr>\n");
     }
 
     private static void Figures(StringBuilder sb, IReadOnlyList<(Figure Figure, string Svg)> figures)
@@ -235,7 +240,9 @@ public static partial class HtmlReport
             "π/√(ab), the passage time of the normal form over the whole line (Strogatz §4.3), and ∮dθ/θ̇ from the reconstructed field."),
         ("Onset, both routes", "a and 1/T² are fitted against μ by weighted least squares, the straight line or a quadratic chosen by " +
             "AICc (Hurvich & Tsai 1989), errors scaled by the reduced χ² (Birge ratio). The onset is the zero of the trend; its 95% " +
-            "interval inverts the test of a zero there (Fieller 1954)."),
+            "interval inverts the test of a zero there (Fieller 1954). The period route also tries T = α(μ−μc)^−½ + β on the periods " +
+            "(the bottleneck passage plus a constant excursion time; Strogatz §4.3), μc by profile likelihood with the same Birge-scaled " +
+            "test, and uses it when AICc, computed for both as densities of the measured periods, prefers it."),
         ("Agreement", "z = (μc₁ − μc₂)/√(σ₁² + σ₂²); |z| > 2 is reported as a disagreement with its most likely reason."),
         ("Scaling", "T = C|μ − μc|^(−β), fitted on log T with μc free and up to two correction terms chosen by AICc. " +
             "A saddle-node on the circle gives β = ½ (Strogatz §4.3)."),

@@ -1,0 +1,199 @@
+using MathNet.Numerics.Distributions;
+using MathNet.Numerics.LinearAlgebra;
+using NormalFormFit.Numerics;
+
+namespace NormalFormFit.Onset;
+
+/// <summary>One run's period for <see cref="SquareRootLawFit"/>: parameter, mean period, its standard error.</summary>
+/// <param name="Mu">Control parameter.</param>
+/// <param name="Period">Mean period T.</param>
+/// <param name="StandardError">Standard error of T.</param>
+public readonly record struct PeriodSample(double Mu, double Period, double StandardError);
+
+/// <summary>A fitted square-root law with what the period route needs to weigh it against the polynomial trends.</summary>
+/// <param name="Law">The fitted law.</param>
+/// <param name="ChiSquare">Weighted residual sum of squares of the periods at the optimum.</param>
+/// <param name="Aicc">AICc with the variance scale estimated (k = number of coefficients + 2).</param>
+/// <param name="Ci95">95% interval of μc by inverting the profile-likelihood test.</param>
+/// <param name="Points">The periods fitted.</param>
+public sealed record SquareRootLawResult(SquareRootPeriodLaw Law, double ChiSquare, double Aicc, Interval Ci95, IReadOnlyList<PeriodSample> Points);
+
+/// <summary>
+/// Fits the period law of a saddle-node on the circle with a constant excursion time,
+/// T = α(μ − μc)^−½ + β (optionally + γ(μ − μc)^½), and inverts its profile likelihood for μc.
+/// </summary>
+/// <remarks>
+/// <para>Law: the passage through the bottleneck of θ̇ ≈ a + bx² takes π/√(ab) with a ∝ μ − μc (Strogatz, Nonlinear
+/// Dynamics and Chaos, 2nd ed., 2015, §4.3, the square-root scaling law of the bottleneck), so T ∝ (μ − μc)^−½ near
+/// onset; the rest of the orbit (the spike, the fast side of the circle) adds a time that tends to a constant β.
+/// Away from the bottleneck T⁻² = d/(α + β√d)² then carries a √d correction that no low-degree polynomial in μ
+/// follows, and with precise periods the polynomial route's interval misses the onset. The optional γd^½ is the next
+/// term of the same expansion (a(μ) curving, b(μ) drifting), chosen by AICc like the scaling law's corrections.</para>
+/// <para>Fit: given μc the law is linear in its coefficients: weighted least squares (QR, MathNet) of Tᵢ with weights
+/// 1/σᵢ². μc is profiled: χ²(μc) minimised over the log distance of μc beyond the run nearest onset by a grid, then
+/// Brent's method (<see cref="GridSearch"/>), from 10⁻⁶ of the span of the runs to 20 spans. A minimum on either end
+/// of that range means the data do not place a singularity there: no estimate.</para>
+/// <para>Interval: all μc whose profile χ² exceeds the minimum by at most t²·χ²min/(n − p), t the 97.5% Student-t
+/// quantile with n − p degrees of freedom (p counts μc): the likelihood-ratio test with the variance scale estimated
+/// (Birge ratio), i.e. the F(1, n − p) test. For a model linear in its parameters this is exactly the test inversion of
+/// <see cref="TrendFit"/> (Fieller 1954 for a straight line), so both laws' intervals are of one kind. The connected
+/// set around the estimate; it cannot pass the run nearest onset (that run turns), and it is unbounded on the far
+/// side when the profile stays below the threshold up to 100 spans. Standard error: from the Jacobian of all
+/// parameters, scaled by the reduced χ² (the convention of SciPy's curve_fit with absolute_sigma=False).</para>
+/// </remarks>
+public static class SquareRootLawFit
+{
+    private const int Grid = 120;
+
+    /// <summary>
+    /// Fits the law with <paramref name="coefficients"/> coefficients (2: α, β; 3: α, β, γ) to periods on the
+    /// turning side <paramref name="side"/> (+1: the runs turn above μc). Null when the profile has no interior
+    /// minimum, α ≤ 0, or fewer than p + 1 runs.
+    /// </summary>
+    public static SquareRootLawResult? Fit(IReadOnlyList<PeriodSample> points, int side, int coefficients = 2)
+    {
+        ArgumentNullException.ThrowIfNull(points);
+        var n = points.Count;
+        var p = coefficients + 1;
+        if (n <= p || side is not (1 or -1) || coefficients is < 2 or > 3)
+        {
+            return null;
+        }
+
+        var mus = points.Select(q => q.Mu).ToArray();
+        var edge = side > 0 ? mus.Min() : mus.Max();
+        var span = mus.Max() - mus.Min();
+        if (!(span > 0))
+        {
+            return null;
+        }
+
+        double OnsetAt(double logDistance) => edge - (side * Math.Exp(logDistance));
+        double Chi2(double logDistance) => Profile(points, side, OnsetAt(logDistance), coefficients, out _);
+
+        var min = GridSearch.Minimize(Chi2, Math.Log(1e-6 * span), Math.Log(20 * span), Grid, 1e-10);
+        if (min.GridIndex < 0 || min.OnEdge || !double.IsFinite(min.Value))
+        {
+            return null;
+        }
+
+        var muc = OnsetAt(min.X);
+        var chi2 = Profile(points, side, muc, coefficients, out var coef);
+        if (!(coef[0] > 0))
+        {
+            return null;
+        }
+
+        var dof = n - p;
+        var red = chi2 / dof;
+        var law = new SquareRootPeriodLaw(coef, muc, side, new double[p, p], red, dof, Scaled: true);
+
+        // Covariance from the Jacobian of all parameters (α, β[, γ], μc), scaled by the reduced χ².
+        var j = Matrix<double>.Build.Dense(n, p);
+        for (var i = 0; i < n; i++)
+        {
+            var g = law.FitGradient(points[i].Mu);
+            for (var k = 0; k < p; k++)
+            {
+                j[i, k] = g[k] / points[i].StandardError;
+            }
+        }
+
+        var cov = j.TransposeThisAndMultiply(j).Inverse() * red;
+        law = law with { Covariance = cov.ToArray() };
+
+        var k2 = p + 1;
+        var aicc = n - k2 - 1 > 0
+            ? (n * Math.Log(Math.Max(chi2, 1e-300) / n)) + (2 * k2) + (2.0 * k2 * (k2 + 1) / (n - k2 - 1))
+            : double.PositiveInfinity;
+
+        var q = StudentT.InvCDF(0, 1, dof, 0.975);
+        var threshold = chi2 + (q * q * red);
+        double Excess(double logDistance) => Chi2(logDistance) - threshold;
+        var nearLog = Edge(Excess, min.X, -1, Math.Log(1e-9 * span));
+        var farLog = Edge(Excess, min.X, +1, Math.Log(Math.Exp(min.X) + (100 * span)));
+        var near = double.IsFinite(nearLog) ? OnsetAt(nearLog) : edge;
+        var far = double.IsFinite(farLog) ? OnsetAt(farLog) : -side * double.PositiveInfinity;
+        var ci = side > 0 ? new Interval(far, near) : new Interval(near, far);
+        return new SquareRootLawResult(law, chi2, aicc, ci, points);
+    }
+
+    /// <summary>
+    /// Weighted least squares of T on d^((k−1)/2), k = 0 … m−1, for a given μc; returns χ² (+∞ when a run is not on
+    /// the turning side).
+    /// </summary>
+    internal static double Profile(IReadOnlyList<PeriodSample> points, int side, double muc, int coefficients, out double[] coef)
+    {
+        var n = points.Count;
+        var x = Matrix<double>.Build.Dense(n, coefficients);
+        var y = Vector<double>.Build.Dense(n);
+        for (var i = 0; i < n; i++)
+        {
+            var d = side * (points[i].Mu - muc);
+            if (!(d > 0))
+            {
+                coef = new double[coefficients];
+                return double.PositiveInfinity;
+            }
+
+            var w = 1.0 / points[i].StandardError;
+            for (var k = 0; k < coefficients; k++)
+            {
+                x[i, k] = Math.Pow(d, 0.5 * (k - 1)) * w;
+            }
+
+            y[i] = points[i].Period * w;
+        }
+
+        var c = x.QR().Solve(y);
+        coef = c.ToArray();
+        var r = y - (x * c);
+        return r.DotProduct(r);
+    }
+
+    /// <summary>
+    /// The first zero of <paramref name="excess"/> (negative at <paramref name="start"/>) walking in
+    /// <paramref name="direction"/> up to <paramref name="limit"/>, by widening steps then bisection; NaN when none.
+    /// </summary>
+    private static double Edge(Func<double, double> excess, double start, int direction, double limit)
+    {
+        var inside = start;
+        var step = 1e-3;
+        while (true)
+        {
+            var probe = inside + (direction * step);
+            var beyond = direction * (probe - limit) >= 0;
+            if (beyond)
+            {
+                probe = limit;
+            }
+
+            if (excess(probe) > 0)
+            {
+                double lo = inside, hi = probe;
+                for (var k = 0; k < 200 && Math.Abs(hi - lo) > 1e-13 * (1 + Math.Abs(lo)); k++)
+                {
+                    var mid = 0.5 * (lo + hi);
+                    if (excess(mid) > 0)
+                    {
+                        hi = mid;
+                    }
+                    else
+                    {
+                        lo = mid;
+                    }
+                }
+
+                return 0.5 * (lo + hi);
+            }
+
+            if (beyond)
+            {
+                return double.NaN;
+            }
+
+            inside = probe;
+            step *= 1.5;
+        }
+    }
+}
