@@ -18,13 +18,14 @@ internal static class CompareCommand
         var c1 = new Option<double?>("--c1") { Description = "hold the scale of μ_model = c0 + c1·μ_lab at this value" };
         var noPeriods = new Option<bool>("--no-periods") { Description = "fit the fields only, leaving out the measured periods" };
         var replicates = new Option<int>("--replicates") { Description = "run sets simulated from the fitted model for the test and the errors (19 gives an exact 5% test; 99 a 1% test)", DefaultValueFactory = _ => CompareOptions.Default.Replicates };
-        var seed = new Option<int>("--seed") { Description = "seed of the simulated replicates (results are reproducible)", DefaultValueFactory = _ => CompareOptions.Default.Seed };
+        var pilot = new Option<int>("--pilot") { Description = "replicates of the pilot stage, which centres the main replicates on the bias-corrected fit (0 turns it off)", DefaultValueFactory = _ => CompareOptions.Default.PilotReplicates };
+        var seed = new Option<int>("--seed") { Description = "seed of the simulated replicates, mixed with a fingerprint of the data (the same data and seed give the same result)", DefaultValueFactory = _ => CompareOptions.Default.Seed };
         var json = new Option<string?>("--json") { Description = "also write the JSON report to FILE ('-' for standard output, which then carries only the JSON)" };
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
         var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
         var cmd = new Command("compare", "Check a reduced phase model against the runs: fitted parameters, onset, verdict, worst runs and phase regions")
         {
-            manifest, model, start, fix, c0, c1, noPeriods, replicates, seed, json, quiet, verbose,
+            manifest, model, start, fix, c0, c1, noPeriods, replicates, pilot, seed, json, quiet, verbose,
         };
         cmd.SetAction(pr =>
         {
@@ -48,6 +49,7 @@ internal static class CompareCommand
                 FixedScale = pr.GetValue(c1),
                 UsePeriods = !pr.GetValue(noPeriods),
                 Replicates = pr.GetValue(replicates),
+                PilotReplicates = pr.GetValue(pilot),
                 Seed = pr.GetValue(seed),
             };
             return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr);

@@ -24,6 +24,7 @@ public static class ComparisonJson
             w.WriteString("name", p.Name);
             Number(w, "value", p.Value);
             Number(w, "se", p.StandardError);
+            Number(w, "bias_removed", p.Bias);
             Number(w, "ci95_low", p.Fixed ? p.Value : p.Ci95.Low);
             Number(w, "ci95_high", p.Fixed ? p.Value : p.Ci95.High);
             w.WriteBoolean("fixed", p.Fixed);

@@ -10,6 +10,9 @@ public sealed record FittedParameter(string Name, double Value, double StandardE
     /// <summary>Multiplier of the SE for the 95% interval: the t quantile for the bootstrap's degrees of freedom (1.96 when not set).</summary>
     public double Quantile { get; init; } = 1.96;
 
+    /// <summary>The bootstrap estimate of the bias removed from the least-squares value (0 when none was removed): Value = least-squares value − Bias.</summary>
+    public double Bias { get; init; }
+
     /// <summary>95% interval, value ± Quantile × SE.</summary>
     public Interval Ci95 => new(Value - (Quantile * StandardError), Value + (Quantile * StandardError));
 }

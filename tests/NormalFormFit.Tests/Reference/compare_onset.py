@@ -13,4 +13,4 @@ def min_speed(mu):
     return r.fun
 
 print("scipy", scipy.__version__)
-print("mu* = %.6f" % brentq(min_speed, 0.5, 2.0, xtol=1e-14))
+print("mu* = %.9f" % brentq(min_speed, 0.5, 2.0, xtol=1e-14))
