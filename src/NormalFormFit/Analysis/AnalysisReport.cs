@@ -145,6 +145,14 @@ public static class OnsetAnalysis
                 $"the two onset routes disagree (z = {agreement.Z:F1}); most likely: {agreement.Reason}")));
         }
 
+        foreach (var est in new[] { fromA, fromT })
+        {
+            if (LawMisfit(est) is { } misfit)
+            {
+                diags.Add(misfit);
+            }
+        }
+
         var next = new List<NextMeasurement>();
         if (verdict is OnsetKinds.SaddleNodeOnCircle or OnsetKinds.Undetermined)
         {
@@ -167,6 +175,28 @@ public static class OnsetAnalysis
         diags.AddRange(fromA.Diagnostics);
         diags.AddRange(fromT.Diagnostics);
         return new AnalysisReport(runs, fromA, fromT, agreement, scaling, diags) { NextMeasurements = next };
+    }
+
+    /// <summary>
+    /// A warning when a route's fitted law misses its points by far more than their errors allow. The Birge ratio
+    /// already widens the interval by √(χ²/dof), which covers errors misstated by a common factor, but not a law of the
+    /// wrong shape: its bias can exceed the widened interval (Morris–Lecar spike times: the truncated period law's
+    /// χ²/dof is about 57 and the interval misses the onset). Threshold: four times the 0.999 quantile of χ²_dof/dof
+    /// (Pearson's χ² test; quantile by MathNet's ChiSquared.InvCDF). The factor four allows for per-run errors from a few
+    /// revolutions being understated by up to two: on correct laws the calibration repeats reach χ²/dof = 10.7 (rotor and
+    /// theta neuron, 400 fits each), so the plain 0.999 quantile fired in 4–8% of them; with the factor, in none.
+    /// </summary>
+    private static Diagnostic? LawMisfit(OnsetEstimate est)
+    {
+        if (!est.IsAvailable || est.Curve is not { } curve || curve.DegreesOfFreedom < 1 || !double.IsFinite(curve.ReducedChiSquare))
+        {
+            return null;
+        }
+
+        var dof = curve.DegreesOfFreedom;
+        var limit = 4.0 * MathNet.Numerics.Distributions.ChiSquared.InvCDF(dof, 0.999) / dof;
+        return curve.ReducedChiSquare <= limit ? null : new Diagnostic(Severity.Warning, "law-misfit", string.Create(System.Globalization.CultureInfo.InvariantCulture,
+            $"the {est.Route} route's law ({curve.Description}) misses its runs by far more than their errors allow (χ²/dof = {curve.ReducedChiSquare:G3} on {dof} degrees of freedom, above {limit:G3}): its interval is widened by √(χ²/dof), but a law of the wrong shape can be biased beyond that, so read the interval as too narrow and compare with the other route"));
     }
 
     private static List<TrendPoint> APoints(IReadOnlyList<RunResult> runs, HashSet<RunResult> excluded) => runs
