@@ -20,12 +20,13 @@ internal static class CompareCommand
         var replicates = new Option<int>("--replicates") { Description = "run sets simulated from the fitted model for the test and the errors (19 gives an exact 5% test; 99 a 1% test)", DefaultValueFactory = _ => CompareOptions.Default.Replicates };
         var pilot = new Option<int>("--pilot") { Description = "replicates of the pilot stage, which centres the main replicates on the bias-corrected fit (0 turns it off)", DefaultValueFactory = _ => CompareOptions.Default.PilotReplicates };
         var seed = new Option<int>("--seed") { Description = "seed of the simulated replicates, mixed with a fingerprint of the data (the same data and seed give the same result)", DefaultValueFactory = _ => CompareOptions.Default.Seed };
+        var outDir = new Option<string?>("--out") { Description = "also write the full report to folder DIR: the analysis report with a section on the model, its figure, model.json" };
         var json = new Option<string?>("--json") { Description = "also write the JSON report to FILE ('-' for standard output, which then carries only the JSON)" };
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
         var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
         var cmd = new Command("compare", "Check a reduced phase model against the runs: fitted parameters, onset, verdict, worst runs and phase regions")
         {
-            manifest, model, start, fix, c0, c1, noPeriods, replicates, pilot, seed, json, quiet, verbose,
+            manifest, model, start, fix, c0, c1, noPeriods, replicates, pilot, seed, json, outDir, quiet, verbose,
         };
         cmd.SetAction(pr =>
         {
@@ -52,13 +53,19 @@ internal static class CompareCommand
                 PilotReplicates = pr.GetValue(pilot),
                 Seed = pr.GetValue(seed),
             };
-            return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr);
+            return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr, pr.GetValue(outDir));
         });
         return cmd;
     }
 
-    internal static int Execute(string manifestPath, ModelExpression expression, CompareOptions options, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr)
+    internal static int Execute(string manifestPath, ModelExpression expression, CompareOptions options, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr, string? outDir = null)
     {
+        if (outDir is not null && ReportFolder.Check(outDir) is { } why)
+        {
+            stderr.WriteLine($"nffit: {outDir}: error: cannot write the report there: {why}");
+            return ExitCodes.BadInput;
+        }
+
         var analysis = ManifestAnalyzer.Analyze(manifestPath, AnalyzeOptions.Default);
         if (analysis.Value is null)
         {
@@ -74,6 +81,19 @@ internal static class CompareCommand
         }
 
         var c = result.Value;
+        if (outDir is not null)
+        {
+            try
+            {
+                ReportFolder.Write(outDir, analysis.Value, Path.GetFileName(manifestPath), model: c);
+            }
+            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+            {
+                stderr.WriteLine($"nffit: {outDir}: error: cannot write the report ({e.Message}); check that the folder is writable");
+                return ExitCodes.BadInput;
+            }
+        }
+
         if (jsonPath == "-")
         {
             using var buffer = new MemoryStream();

@@ -1,5 +1,6 @@
 using System.Text;
 using NormalFormFit.Analysis;
+using NormalFormFit.Compare;
 using NormalFormFit.Reporting;
 using NormalFormFit.Reporting.Figures;
 using NormalFormFit.Reporting.Html;
@@ -41,7 +42,12 @@ internal static class ReportFolder
     }
 
     /// <summary>Renders and writes every file of the report; reports each step to <paramref name="progress"/>.</summary>
-    public static void Write(string dir, AnalysisReport report, string source, Action<string, int, int>? progress = null)
+    /// <param name="dir">Target folder.</param>
+    /// <param name="report">The analysis.</param>
+    /// <param name="source">The manifest's name, for the page's heading.</param>
+    /// <param name="progress">Step, done, total.</param>
+    /// <param name="model">A model comparison of the same runs: adds its figure, a section of the page, model.json and its text.</param>
+    public static void Write(string dir, AnalysisReport report, string source, Action<string, int, int>? progress = null, ModelComparison? model = null)
     {
         var full = Full(dir);
         var parent = Path.GetDirectoryName(full)!;
@@ -56,7 +62,12 @@ internal static class ReportFolder
             }
 
             Directory.CreateDirectory(tmp);
-            var figures = ReportFigures.Build(report);
+            var figures = ReportFigures.Build(report).ToList();
+            if (model is not null && ReportFigures.Model(report, model) is { } modelFigure)
+            {
+                figures.Add(modelFigure);
+            }
+
             var rendered = new List<(Figure, string)>(figures.Count);
             for (var i = 0; i < figures.Count; i++)
             {
@@ -76,9 +87,20 @@ internal static class ReportFolder
                 JsonReport.Write(report, json, NffitApp.Version);
             }
 
-            File.WriteAllText(Path.Combine(tmp, "report.txt"), TextReport.Format(report), Utf8);
+            var text = TextReport.Format(report);
+            if (model is not null)
+            {
+                using (var json = File.Create(Path.Combine(tmp, "model.json")))
+                {
+                    ComparisonJson.Write(model, json, NffitApp.Version);
+                }
+
+                text += Environment.NewLine + "Reduced model" + Environment.NewLine + CompareCommand.Format(model);
+            }
+
+            File.WriteAllText(Path.Combine(tmp, "report.txt"), text, Utf8);
             File.WriteAllText(Path.Combine(tmp, "report.html"),
-                HtmlReport.Build(report, rendered, new HtmlReportOptions { Source = source, ToolVersion = NffitApp.Version }), Utf8);
+                HtmlReport.Build(report, rendered, new HtmlReportOptions { Source = source, ToolVersion = NffitApp.Version }, model), Utf8);
             File.WriteAllText(Path.Combine(tmp, Marker), "written by nffit " + NffitApp.Version + "\n", Utf8);
 
             if (Directory.Exists(full))

@@ -101,6 +101,27 @@ public class ModelComparerTests
     }
 
     [Fact]
+    public void Cli_ReportFolderThatCannotBeWritten_ExitsWith2_BeforeAnyWork_AndWritesNothing()
+    {
+        var dir = Path.Combine(Path.GetTempPath(), "nffit-compare-out-" + Guid.NewGuid().ToString("N"));
+        Directory.CreateDirectory(dir);
+        try
+        {
+            File.WriteAllText(Path.Combine(dir, "notes.txt"), "a user's file");
+            var stdout = new StringWriter();
+            var stderr = new StringWriter();
+            var code = NffitApp.Run(["compare", "nowhere.csv", "--model", "mu - a*sin(theta)", "--out", dir], stdout, stderr);
+            Assert.Equal(2, code);
+            Assert.Contains("holds files that are not an nffit report", stderr.ToString(), StringComparison.Ordinal);
+            Assert.Equal(["notes.txt"], Directory.GetFiles(dir).Select(Path.GetFileName));
+        }
+        finally
+        {
+            Directory.Delete(dir, recursive: true);
+        }
+    }
+
+    [Fact]
     public void Cli_BadExpression_ExitsWith2_AndPointsAtTheColumn()
     {
         var stdout = new StringWriter();
@@ -122,7 +143,22 @@ public class ModelComparerTests
             var e = new StringWriter();
             Assert.Equal(0, NffitApp.Run(["simulate", "--model", "mu - a*sin(theta)", "--set", "a=0.8", "--params", "0.85,0.9,1.0,1.2", "--out", dir, "--dt", "0.05", "--revolutions", "5", "--noise", "0.01", "--quiet"], o, e));
             var json = Path.Combine(dir, "c.json");
-            Assert.Equal(0, NffitApp.Run(["compare", Path.Combine(dir, "manifest.csv"), "--model", "mu - a*sin(theta)", "--c0", "0", "--c1", "1", "--json", json, "--quiet"], o, e));
+            var report = Path.Combine(dir, "report");
+            Assert.Equal(0, NffitApp.Run(["compare", Path.Combine(dir, "manifest.csv"), "--model", "mu - a*sin(theta)", "--c0", "0", "--c1", "1", "--json", json, "--out", report, "--quiet"], o, e));
+
+            // The report folder: the analysis report with a section on the model, the model's figure and model.json.
+            var html = File.ReadAllText(Path.Combine(report, "report.html"));
+            Assert.Contains("<section id=\"model\">", html, StringComparison.Ordinal);
+            Assert.Contains("<figure id=\"fig-model\">", html, StringComparison.Ordinal);
+            Assert.Contains("mu - a*sin(theta)", html, StringComparison.Ordinal);
+            Assert.True(new FileInfo(Path.Combine(report, "model.png")).Length > 1000);
+            Assert.Equal("svg", System.Xml.Linq.XDocument.Parse(File.ReadAllText(Path.Combine(report, "model.svg"))).Root!.Name.LocalName);
+            using (var modelJson = System.Text.Json.JsonDocument.Parse(File.ReadAllText(Path.Combine(report, "model.json"))))
+            {
+                Assert.Equal("mu - a*sin(theta)", modelJson.RootElement.GetProperty("model").GetProperty("expression").GetString());
+            }
+
+            Assert.Contains("Reduced model", File.ReadAllText(Path.Combine(report, "report.txt")), StringComparison.Ordinal);
             using var doc = System.Text.Json.JsonDocument.Parse(File.ReadAllText(json));
             var m = doc.RootElement.GetProperty("model");
             Assert.Equal("mu - a*sin(theta)", m.GetProperty("expression").GetString());

@@ -39,7 +39,7 @@ public sealed record Figure(string Name, string Title, string Caption, Plot Plot
 /// The figures people judge the fits by: θ̇(θ) with bands and parabolas, both onset trends, the scaling law on
 /// log–log axes, measured against predicted periods, and the residuals of the bottleneck fits.
 /// </summary>
-public static class ReportFigures
+public static partial class ReportFigures
 {
     /// <summary>Default width in pixels.</summary>
     public const int DefaultWidth = 960;

@@ -3,6 +3,7 @@ using System.Net;
 using System.Text;
 using System.Text.RegularExpressions;
 using NormalFormFit.Analysis;
+using NormalFormFit.Compare;
 using NormalFormFit.Onset;
 using NormalFormFit.Reporting.Figures;
 using static NormalFormFit.Reporting.ReportNumbers;
@@ -34,7 +35,11 @@ public static partial class HtmlReport
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
 
     /// <summary>Builds the page from the report and its figures (SVG text in the same order as the figures).</summary>
-    public static string Build(AnalysisReport report, IReadOnlyList<(Figure Figure, string Svg)> figures, HtmlReportOptions? options = null)
+    /// <param name="report">The analysis.</param>
+    /// <param name="figures">Rendered figures, in reading order.</param>
+    /// <param name="options">What the page says about its source.</param>
+    /// <param name="model">A model comparison of the same runs; when given, the page gains a section on it.</param>
+    public static string Build(AnalysisReport report, IReadOnlyList<(Figure Figure, string Svg)> figures, HtmlReportOptions? options = null, ModelComparison? model = null)
     {
         ArgumentNullException.ThrowIfNull(report);
         ArgumentNullException.ThrowIfNull(figures);
@@ -74,6 +79,11 @@ public static partial class HtmlReport
         sb.Append(string.Join(" · ", meta)).Append("</p></header>\n");
 
         Answer(sb, report);
+        if (model is not null)
+        {
+            Model(sb, model, figures.Select(f => f.Figure.Name).ToList(), report.ParamUnits is { Length: > 0 } pu ? " " + E(pu) : string.Empty);
+        }
+
         Figures(sb, figures);
         Runs(sb, report);
         Diagnostics(sb, report);
@@ -128,6 +138,78 @@ public static partial class HtmlReport
 
         sb.Append("</section>\n");
     }
+
+    private static void Model(StringBuilder sb, ModelComparison c, IReadOnlyList<string> figureNames, string units)
+    {
+        sb.Append("<section id=\"model\"><h2>Reduced model</h2>\n<p>dθ/dt = <code>").Append(E(c.Expression))
+          .Append("</code>, with μ = c0 + c1·μ_lab, fitted to the runs' fields and periods.</p>\n");
+        var replicates = c.ReplicateStatistics.Count + c.FailedReplicates;
+        var largest = c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN;
+        sb.Append("<p class=\"verdict ").Append(c.Consistent ? "good" : "bad").Append("\"><strong>")
+          .Append(c.Consistent ? "Consistent with the data" : "Rejected by the data").Append("</strong>: ")
+          .Append(string.Create(Inv, $"misfit Q = {G(c.Statistic, 4)} against {replicates} run sets simulated from the fitted model (mean {G(c.Expected, 4)}, largest {G(largest, 4)}); p = {G(c.PValue, 2)}."))
+          .Append("</p>\n");
+        sb.Append("<table class=\"answer\">\n<thead><tr><th>parameter</th><th>value ± s.e.</th><th>95% interval</th><th>bias removed</th></tr></thead>\n<tbody>\n");
+        foreach (var p in c.Parameters.Append(c.Offset).Append(c.Scale))
+        {
+            sb.Append("<tr><th scope=\"row\">").Append(E(p.Name)).Append("</th>");
+            if (p.Fixed)
+            {
+                sb.Append("<td class=\"num\">").Append(G(p.Value)).Append("</td><td colspan=\"2\">held at this value</td></tr>\n");
+                continue;
+            }
+
+            sb.Append("<td class=\"num\">").Append(WithError(p.Value, p.StandardError)).Append("</td>")
+              .Append("<td class=\"num\">").Append(Interval(p.Ci95, p.StandardError)).Append("</td>")
+              .Append("<td class=\"num\">").Append(G(p.Bias, 3)).Append("</td></tr>\n");
+        }
+
+        sb.Append("<tr><th scope=\"row\">model's onset μ_lab</th>");
+        sb.Append(double.IsFinite(c.Onset.Value)
+            ? "<td class=\"num\">" + WithError(c.Onset.Value, c.Onset.StandardError) + units + "</td><td class=\"num\">" + Interval(c.OnsetCi95, c.Onset.StandardError) + units + "</td><td></td>"
+            : "<td colspan=\"3\">none in reach</td>");
+        sb.Append("</tr>\n</tbody></table>\n");
+
+        sb.Append("<h3>Where the model fits worst</h3>\n<table class=\"runs\">\n<thead><tr><th>run or phase region</th><th>misfit ÷ expected</th><th>mean residual</th></tr></thead>\n<tbody>\n");
+        foreach (var r in c.WorstRuns)
+        {
+            sb.Append("<tr><td>").Append(E(r.File)).Append(" (μ = ").Append(G(r.Param)).Append(")</td><td class=\"num\">").Append(G(r.Ratio, 3))
+              .Append("</td><td>").Append(Residual(r.MeanResidual)).Append("</td></tr>\n");
+        }
+
+        foreach (var g in c.WorstRegions)
+        {
+            sb.Append(string.Create(Inv, $"<tr><td>θ in [{g.From:F2}, {g.To:F2}) rad</td><td class=\"num\">")).Append(G(g.Ratio, 3))
+              .Append("</td><td>").Append(Residual(g.MeanResidual)).Append("</td></tr>\n");
+        }
+
+        sb.Append("</tbody></table>\n<p class=\"note\">Misfit ÷ expected: the run's (or region's) sum of squared residuals over its mean in the ")
+          .Append("simulated replicates; about 1 is a good fit. Mean residuals are in units of the replicates' RMS residual.");
+        if (figureNames.Contains("model"))
+        {
+            sb.Append(" The runs are drawn against the model in <a href=\"#fig-model\">the model figure</a>.");
+        }
+
+        sb.Append("</p>\n");
+        if (c.Diagnostics.Count > 0)
+        {
+            sb.Append("<ul class=\"diags\">\n");
+            foreach (var d in c.Diagnostics)
+            {
+                sb.Append("<li class=\"").Append(d.Severity == Severity.Warning ? "warning" : "note").Append("\">").Append(E(d.Message))
+                  .Append(" <span class=\"code\">(").Append(E(d.Code)).Append(")</span></li>\n");
+            }
+
+            sb.Append("</ul>\n");
+        }
+
+        sb.Append("<p class=\"note\">Errors, intervals and the verdict come from a parametric bootstrap: the whole analysis repeated on ")
+          .Append("runs simulated from the fitted model (a pilot stage first removes the reconstruction's smoothing bias). ")
+          .Append("See docs/model-expressions.md for the method and its measured calibration.</p>\n</section>\n");
+    }
+
+    private static string Residual(double r) => !double.IsFinite(r) ? "–" :
+        string.Create(Inv, $"model too {(r > 0 ? "fast" : "slow")} by {Math.Abs(r):F2}");
 
     private static void OnsetRow(StringBuilder sb, string label, OnsetEstimate e, string units, string css)
     {
