@@ -130,7 +130,8 @@ public static class OnsetAnalysis
         else
         {
             var turning = runs.Where(r => r.IsTurning).ToList();
-            var speed = OnsetKind.MinimumSpeed(fromA, turning.Select(r => r.Param).ToList(), turning.Count(r => r.Bottleneck is not null));
+            var speed = OnsetKind.MinimumSpeed(fromA, turning.Select(r => r.Param).ToList(), turning.Count(r => r.Bottleneck is not null))
+                with { PeriodsOnly = turning.Count > 0 && turning.All(r => r.Flags.Contains(RunFlags.PeriodsOnly)) };
             var weights = PeriodLaws.Weigh(periodPoints);
             var (v, evidence) = OnsetKind.Judge(scaling, weights, speed);
             verdict = v;

@@ -25,7 +25,11 @@ public static class OnsetKinds
 /// <param name="Ci95">Its 95% interval.</param>
 /// <param name="RunsWithBottleneck">Turning runs with a bottleneck fit.</param>
 /// <param name="TurningRuns">Turning runs.</param>
-public sealed record MinimumSpeedTrend(bool ReachesZero, double Onset, Interval Ci95, int RunsWithBottleneck, int TurningRuns);
+public sealed record MinimumSpeedTrend(bool ReachesZero, double Onset, Interval Ci95, int RunsWithBottleneck, int TurningRuns)
+{
+    /// <summary>True when the runs carry periods only (event times): there is no phase velocity, so no minimum speed to weigh.</summary>
+    public bool PeriodsOnly { get; init; }
+}
 
 /// <summary>
 /// The verdict on the kind of onset from three pieces of evidence: the exponent β of T ∝ (μ−μc)^(−β), the trend of the
@@ -65,6 +69,7 @@ public static class OnsetKind
         var text = string.Create(Inv, $"β = {beta.Value:F3} (95% interval {ci.Low:F3} to {ci.High:F3}) from {scaling.Runs} runs; ");
         text += speed.ReachesZero
             ? string.Create(Inv, $"the minimum speed a extrapolates to zero at μ = {speed.Onset:G5}; ")
+            : speed.PeriodsOnly ? string.Empty
             : speed.RunsWithBottleneck * 2 <= speed.TurningRuns
                 ? $"only {speed.RunsWithBottleneck} of {speed.TurningRuns} turning runs show a bottleneck; "
                 : "the minimum speed a does not extrapolate to zero near the runs; ";
@@ -84,6 +89,8 @@ public static class OnsetKind
         {
             case "saddle-node" when betaHalf && speed.ReachesZero:
                 return (OnsetKinds.SaddleNodeOnCircle, text + "; all three point to a saddle-node on the circle");
+            case "saddle-node" when betaHalf && speed.PeriodsOnly:
+                return (OnsetKinds.SaddleNodeOnCircle, text + "; the exponent and the period laws point to a saddle-node on the circle (event times carry no phase velocity, so the minimum speed could not be weighed)");
             case "saddle-node":
                 return (OnsetKinds.Undetermined, text + (betaHalf
                     ? "; the square-root law fits best but the minimum speed does not confirm a bottleneck closing"

@@ -93,6 +93,11 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
         // The interval misses the onset here (see the skipped test below); the report must say that the law does not
         // fit the periods within their errors, so that the interval is not read at face value.
         Assert.Contains(report.Diagnostics, d => d.Code == "law-misfit" && d.Message.Contains("period route", StringComparison.Ordinal));
+
+        // Spike times alone still tell the kind of onset: Morris–Lecar with this set is class I, a saddle-node on the
+        // invariant circle (Rinzel & Ermentrout 1998, from memory), and the periods' exponent and laws say so.
+        Assert.Equal(NormalFormFit.Scaling.OnsetKinds.SaddleNodeOnCircle, report.Scaling?.Verdict);
+        Assert.Contains("event times carry no phase velocity", report.Scaling!.Evidence, StringComparison.Ordinal);
     }
 
     /// <summary>
@@ -127,5 +132,7 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
         {
             output.WriteLine($"{e.Route}: {e.Value} ± {e.StandardError} [{e.Ci95.Low}, {e.Ci95.High}] runs {e.Runs}");
         }
+
+        output.WriteLine($"kind of onset: {report.Scaling?.Verdict}: {report.Scaling?.Evidence}");
     }
 }
