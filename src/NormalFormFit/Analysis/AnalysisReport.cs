@@ -131,7 +131,8 @@ public static class OnsetAnalysis
         {
             var turning = runs.Where(r => r.IsTurning).ToList();
             var speed = OnsetKind.MinimumSpeed(fromA, turning.Select(r => r.Param).ToList(), turning.Count(r => r.Bottleneck is not null))
-                with { PeriodsOnly = turning.Count > 0 && turning.All(r => r.Flags.Contains(RunFlags.PeriodsOnly)) };
+                with
+            { PeriodsOnly = turning.Count > 0 && turning.All(r => r.Flags.Contains(RunFlags.PeriodsOnly)) };
             var weights = PeriodLaws.Weigh(periodPoints);
             var (v, evidence) = OnsetKind.Judge(scaling, weights, speed);
             verdict = v;
