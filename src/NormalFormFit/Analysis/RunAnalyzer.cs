@@ -52,6 +52,7 @@ public static class RunAnalyzer
         var speed = new double[n];
         var used = new bool[n];
         var firstLambda = double.NaN;
+        SmoothingMethod? firstMethod = null;
         var ssq = 0.0;
         var dof = 0.0;
         var edf = 0.0;
@@ -71,6 +72,7 @@ public static class RunAnalyzer
             {
                 longest = e - s;
                 firstLambda = fit.Lambda;
+                firstMethod = fit.Method;
             }
 
             ssq += fit.ResidualVariance * (e - s - fit.EffectiveDegreesOfFreedom);
@@ -97,7 +99,7 @@ public static class RunAnalyzer
         }
 
         var segs = CompactSegments(trajectory, used);
-        var smoothing = new SmoothingSummary(firstLambda, dof > 0 ? Math.Sqrt(ssq / dof) : double.NaN, edf);
+        var smoothing = new SmoothingSummary(firstLambda, dof > 0 ? Math.Sqrt(ssq / dof) : double.NaN, edf, firstMethod);
         var turns = (ph[^1] - ph[0]) / (2 * Math.PI);
         if (turns < 1)
         {
