@@ -26,8 +26,9 @@ public enum Delimiter
 /// <summary>
 /// Streams a delimited text file as UTF-8 bytes, one record at a time, without building strings for the
 /// data lines. Skips blank lines and lines whose first non-blank character is <c>#</c>; accepts LF and
-/// CRLF line ends and a UTF-8 byte-order mark. Fields are trimmed of blanks. Cost O(file size), memory
-/// one buffer of the longest line.
+/// CRLF line ends and a UTF-8 byte-order mark. Fields are trimmed of blanks. With a comma, semicolon or tab
+/// separator a field may be quoted as in RFC 4180 §2 (separators inside, <c>""</c> for a quote), within one
+/// line. Cost O(file size), memory one buffer of the longest line.
 /// </summary>
 internal sealed class DelimitedTextReader : IDisposable
 {
@@ -40,6 +41,7 @@ internal sealed class DelimitedTextReader : IDisposable
     private bool _first = true;
     private int[] _fieldStarts = new int[16];
     private int[] _fieldEnds = new int[16];
+    private bool[] _fieldQuoted = new bool[16];
     private int _lineOffset;
     private int _lineLength;
 
@@ -67,8 +69,12 @@ internal sealed class DelimitedTextReader : IDisposable
     /// <summary>1-based column (character position) at which field <paramref name="i"/> starts.</summary>
     public int ColumnOf(int i) => Encoding.UTF8.GetCharCount(Line[.._fieldStarts[i]]) + 1;
 
-    /// <summary>Field <paramref name="i"/> as a string (for headers and messages).</summary>
-    public string FieldText(int i) => Encoding.UTF8.GetString(Field(i));
+    /// <summary>Field <paramref name="i"/> as a string (for headers and messages), a quoted field's <c>""</c> as one quote.</summary>
+    public string FieldText(int i)
+    {
+        var text = Encoding.UTF8.GetString(Field(i));
+        return _fieldQuoted[i] ? text.Replace("\"\"", "\"", StringComparison.Ordinal) : text;
+    }
 
     /// <summary>True when the line holds a byte that never appears in text (NUL or other C0 controls but tab).</summary>
     public bool LineLooksBinary()
@@ -152,6 +158,19 @@ internal sealed class DelimitedTextReader : IDisposable
             var s = 0;
             while (true)
             {
+                var next = QuotedField(line, s, sep, out var close);
+                if (next >= 0)
+                {
+                    Add(ref count, line[s..].IndexOf((byte)'"') + s + 1, close, quoted: true);
+                    if (next > line.Length)
+                    {
+                        break;
+                    }
+
+                    s = next;
+                    continue;
+                }
+
                 var k = line[s..].IndexOf(sep);
                 var e = k < 0 ? line.Length : s + k;
                 var (a, b) = TrimRange(line, s, e);
@@ -168,6 +187,59 @@ internal sealed class DelimitedTextReader : IDisposable
         FieldCount = count;
     }
 
+    /// <summary>
+    /// When the field at <paramref name="s"/> is a well-formed quoted field (blanks, '"', text with '""' for a quote,
+    /// '"', blanks, then the separator or the line end): the start of the next field (past the line end for the last
+    /// field) and, in <paramref name="close"/>, the position of the closing quote. Otherwise −1: read as unquoted.
+    /// </summary>
+    private static int QuotedField(ReadOnlySpan<byte> line, int s, byte sep, out int close)
+    {
+        close = -1;
+        var p = s;
+        while (p < line.Length && IsBlank(line[p]))
+        {
+            p++;
+        }
+
+        if (p == line.Length || line[p] != (byte)'"')
+        {
+            return -1;
+        }
+
+        var q = p + 1;
+        while (true)
+        {
+            var k = line[q..].IndexOf((byte)'"');
+            if (k < 0)
+            {
+                return -1;
+            }
+
+            q += k;
+            if (q + 1 < line.Length && line[q + 1] == (byte)'"')
+            {
+                q += 2;
+                continue;
+            }
+
+            break;
+        }
+
+        var after = q + 1;
+        while (after < line.Length && IsBlank(line[after]))
+        {
+            after++;
+        }
+
+        if (after < line.Length && line[after] != sep)
+        {
+            return -1;
+        }
+
+        close = q;
+        return after + 1;
+    }
+
     private static (int Start, int End) TrimRange(ReadOnlySpan<byte> line, int s, int e)
     {
         while (s < e && IsBlank(line[s]))
@@ -180,27 +252,23 @@ internal sealed class DelimitedTextReader : IDisposable
             e--;
         }
 
-        if (e - s >= 2 && line[s] == (byte)'"' && line[e - 1] == (byte)'"')
-        {
-            s++;
-            e--;
-        }
-
         return (s, e);
     }
 
     private static bool IsBlank(byte b) => b == (byte)' ' || b == (byte)'\t';
 
-    private void Add(ref int count, int s, int e)
+    private void Add(ref int count, int s, int e, bool quoted = false)
     {
         if (count == _fieldStarts.Length)
         {
             Array.Resize(ref _fieldStarts, count * 2);
             Array.Resize(ref _fieldEnds, count * 2);
+            Array.Resize(ref _fieldQuoted, count * 2);
         }
 
         _fieldStarts[count] = s;
         _fieldEnds[count] = e;
+        _fieldQuoted[count] = quoted;
         count++;
     }
 
