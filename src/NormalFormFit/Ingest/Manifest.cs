@@ -53,8 +53,14 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
     private static Loaded<Manifest> Read(Stream stream, string path)
     {
         using var reader = new DelimitedTextReader(stream, Delimiter.Auto);
+        const string expected = "a CSV file with header 'file,param' and one line per run";
         if (!reader.Read())
         {
+            if (reader.TooLong is not null)
+            {
+                return Loaded.Fail<Manifest>(reader.TooLongError(path, expected));
+            }
+
             return Loaded.Fail<Manifest>(new Diagnostic(Severity.Error, "empty-file",
                 "the manifest is empty; expected a header 'file,param' and one line per run", path));
         }
@@ -111,6 +117,11 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
             seen[param] = reader.LineNumber;
             string? Opt(int c) => c >= 0 && c < reader.FieldCount && reader.Field(c).Length > 0 ? reader.FieldText(c) : null;
             entries.Add(new ManifestEntry(file, param, Opt(labelCol), Opt(unitsCol)) { Line = reader.LineNumber });
+        }
+
+        if (reader.TooLong is not null)
+        {
+            return Loaded.Fail<Manifest>(reader.TooLongError(path, expected));
         }
 
         if (entries.Count == 0)

@@ -53,6 +53,17 @@ public class FileFormTests
     }
 
     [Fact]
+    public void CommentLineOfExactlyOneMiB_IsWithinTheLineLimitAndRead()
+    {
+        // The limit is 1 MiB = 1 048 576 bytes per line, line end excluded (docs/input-formats.md): the boundary is legal.
+        var comment = "#" + new string('c', (1 << 20) - 1);
+        var r = Read($"t,theta\n{comment}\n0,0.5\n0.25,1.5\n0.5,-3\n");
+
+        Assert.True(r.Succeeded, string.Join("; ", r.Diagnostics));
+        Assert.Equal([0, 0.25, 0.5], r.Value!.Phase!.Time);
+    }
+
+    [Fact]
     public void PhaseInDegreesAndTurns_IsConvertedToRadians()
     {
         var deg = Read("t,theta\n0,90\n1,180\n", new RunReadOptions { PhaseUnit = PhaseUnit.Degrees }).Value!.Phase!.Phase;
