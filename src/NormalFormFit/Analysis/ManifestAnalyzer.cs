@@ -59,6 +59,7 @@ public static class ManifestAnalyzer
         }
 
         var entries = manifest.Value.Entries;
+        var fullPaths = entries.Select(manifest.Value.FullPathOf).ToArray();
         var results = new RunResult?[entries.Count];
         var readDiags = new IReadOnlyList<Diagnostic>[entries.Count];
         var done = 0;
@@ -66,7 +67,7 @@ public static class ManifestAnalyzer
         {
             var e = entries[i];
             var display = Path.Combine(Path.GetDirectoryName(manifestPath) ?? string.Empty, e.File);
-            var rec = RunReader.ReadRecording(e.FullPath, options.Read, display);
+            var rec = RunReader.ReadRecording(fullPaths[i], options.Read, display);
             readDiags[i] = rec.Diagnostics;
             if (rec.Value is not null)
             {

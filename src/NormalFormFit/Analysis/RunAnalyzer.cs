@@ -52,6 +52,7 @@ public static class RunAnalyzer
         var speed = new double[n];
         var used = new bool[n];
         var firstLambda = double.NaN;
+        SmoothingMethod? firstMethod = null;
         var ssq = 0.0;
         var dof = 0.0;
         var edf = 0.0;
@@ -71,6 +72,7 @@ public static class RunAnalyzer
             {
                 longest = e - s;
                 firstLambda = fit.Lambda;
+                firstMethod = fit.Method;
             }
 
             ssq += fit.ResidualVariance * (e - s - fit.EffectiveDegreesOfFreedom);
@@ -97,7 +99,7 @@ public static class RunAnalyzer
         }
 
         var segs = CompactSegments(trajectory, used);
-        var smoothing = new SmoothingSummary(firstLambda, dof > 0 ? Math.Sqrt(ssq / dof) : double.NaN, edf);
+        var smoothing = new SmoothingSummary(firstLambda, dof > 0 ? Math.Sqrt(ssq / dof) : double.NaN, edf, firstMethod);
         var turns = (ph[^1] - ph[0]) / (2 * Math.PI);
         if (turns < 1)
         {
@@ -200,15 +202,23 @@ public static class RunAnalyzer
                 $"phase diffusion D = {noise.Diffusion.Value:G3} ± {noise.Diffusion.StandardError:G2} shortens the bottleneck passage to {noise.PassageRatio:P0} of π/√(ab): noise, not the bottleneck, sets the period; the run is left out of the onset fits")));
         }
 
-        // Both behaviours in one run: it turned, then rested for the last quarter of the record.
-        var quarter = tt[^1] - (0.25 * (tt[^1] - tt[0]));
-        var lastStart = Array.FindIndex(tt, x => x >= quarter);
-        if (lastStart > 0 && double.IsFinite(measured) && 0.25 * (tt[^1] - tt[0]) > 2 * measured
-            && (ph[^1] - ph[lastStart]) / (2 * Math.PI) < 0.1)
+        // Both behaviours in one run: it turned, then rested for the last quarter of the record, or the reverse. A quarter
+        // longer than two periods with less than a tenth of a turn in it is a rest, not a slow bottleneck passage
+        // (common practice, no source).
+        var quarter = 0.25 * (tt[^1] - tt[0]);
+        if (double.IsFinite(measured) && quarter > 2 * measured)
         {
-            flags.Add(RunFlags.MixedBehaviour);
-            diags.Add(Warn(file, "mixed-behaviour",
-                "the run turns and then comes to rest: both behaviours at one parameter value (bistability or drift of the parameter)"));
+            var lastStart = Array.FindIndex(tt, x => x >= tt[^1] - quarter);
+            var firstEnd = Array.FindLastIndex(tt, x => x <= tt[0] + quarter);
+            var restsLast = lastStart > 0 && (ph[^1] - ph[lastStart]) / (2 * Math.PI) < 0.1;
+            var restsFirst = firstEnd > 0 && (ph[firstEnd] - ph[0]) / (2 * Math.PI) < 0.1;
+            if (restsLast || restsFirst)
+            {
+                flags.Add(RunFlags.MixedBehaviour);
+                diags.Add(Warn(file, "mixed-behaviour", restsLast
+                    ? "the run turns and then comes to rest: both behaviours at one parameter value (bistability or drift of the parameter)"
+                    : "the run rests and then starts to turn: both behaviours at one parameter value (bistability or drift of the parameter)"));
+            }
         }
 
         return new RunResult(file, param, label, n, duration, turns, trajectory.Direction, smoothing, field, bottleneck, summary, flags, diags) { Noise = noise };

@@ -3,6 +3,7 @@ using System.Text.Json;
 using NormalFormFit.Bottleneck;
 using NormalFormFit.Field;
 using NormalFormFit.Ingest;
+using NormalFormFit.Smoothing;
 
 namespace NormalFormFit.Analysis;
 
@@ -132,6 +133,11 @@ public static class RunLines
             Number(w, "lambda", s.Lambda);
             Number(w, "noise_sd", s.NoiseSd);
             Number(w, "edf", s.EffectiveDegreesOfFreedom);
+            if (s.Smoother is { } m)
+            {
+                w.WriteString("smoother", SmoothingMethodNames.Name(m));
+            }
+
             w.WriteEndObject();
         }
 
@@ -197,7 +203,14 @@ public static class RunLines
         SmoothingSummary? smoothing = null;
         if (e.TryGetProperty("smoothing", out var s))
         {
-            smoothing = new SmoothingSummary(Num(s, "lambda"), Num(s, "noise_sd"), Num(s, "edf"));
+            var name = OptionalString(s, "smoother");
+            var smoother = SmoothingMethodNames.Parse(name);
+            if (name is not null && smoother is null)
+            {
+                throw new FormatException($"unknown smoother '{name}'");
+            }
+
+            smoothing = new SmoothingSummary(Num(s, "lambda"), Num(s, "noise_sd"), Num(s, "edf"), smoother);
         }
 
         PhaseField? field = null;

@@ -1,5 +1,6 @@
 using NormalFormFit.Bottleneck;
 using NormalFormFit.Field;
+using NormalFormFit.Smoothing;
 
 namespace NormalFormFit.Analysis;
 
@@ -50,10 +51,14 @@ public static class RunFlags
 }
 
 /// <summary>Smoothing summary of a run.</summary>
-/// <param name="Lambda">Smoothing parameter of the first (longest) segment, in the run's time units.</param>
+/// <param name="Lambda">Smoothing parameter of the longest segment, in the run's time units.</param>
 /// <param name="NoiseSd">Residual standard deviation of the phase about the spline (rad): the measurement noise.</param>
 /// <param name="EffectiveDegreesOfFreedom">Total trace of the influence matrices.</param>
-public sealed record SmoothingSummary(double Lambda, double NoiseSd, double EffectiveDegreesOfFreedom);
+/// <param name="Smoother">
+/// The smoother of the longest segment, the one <paramref name="Lambda"/> belongs to (shorter segments of the same run
+/// may have used the exact spline); null when not known (run lines written before it was recorded).
+/// </param>
+public sealed record SmoothingSummary(double Lambda, double NoiseSd, double EffectiveDegreesOfFreedom, SmoothingMethod? Smoother);
 
 /// <summary>Periods of a run: measured, and predicted from the bottleneck and from the field.</summary>
 /// <param name="Measured">Mean measured period with standard error.</param>

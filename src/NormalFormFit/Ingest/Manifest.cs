@@ -2,20 +2,33 @@ using System.Globalization;
 
 namespace NormalFormFit.Ingest;
 
-/// <summary>One row of a manifest: a run file and the control-parameter value it was recorded at.</summary>
-/// <param name="File">Path as written in the manifest.</param>
-/// <param name="FullPath">Path resolved against the manifest's folder.</param>
+/// <summary>
+/// One row of a manifest: a run file and the control-parameter value it was recorded at. <see cref="Manifest.Read(string)"/>
+/// reads rows; <see cref="Simulation.RunWriter.WriteManifest"/> writes them.
+/// </summary>
+/// <param name="File">Path of the run file as written in the manifest, relative to the manifest's folder.</param>
 /// <param name="Param">Control-parameter value μ.</param>
 /// <param name="Label">Optional label.</param>
 /// <param name="Units">Optional units of the parameter.</param>
-/// <param name="Line">Line of the manifest that named it.</param>
-public sealed record ManifestEntry(string File, string FullPath, double Param, string? Label, string? Units, int Line);
+public sealed record ManifestEntry(string File, double Param, string? Label = null, string? Units = null)
+{
+    /// <summary>Line of the manifest that named the run; 0 for a row not read from a file.</summary>
+    public int Line { get; init; }
+}
 
 /// <summary>A manifest: CSV with header <c>file,param</c> (optional <c>label</c>, <c>units</c>).</summary>
 /// <param name="Path">The manifest's own path.</param>
 /// <param name="Entries">Its rows in file order.</param>
 public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
 {
+    /// <summary>The full path of <paramref name="entry"/>'s run file: its path resolved against the manifest's folder.</summary>
+    public string FullPathOf(ManifestEntry entry)
+    {
+        ArgumentNullException.ThrowIfNull(entry);
+        var folder = System.IO.Path.GetDirectoryName(System.IO.Path.GetFullPath(Path)) ?? ".";
+        return System.IO.Path.GetFullPath(System.IO.Path.Combine(folder, entry.File));
+    }
+
     /// <summary>Reads and checks a manifest; problems come back as diagnostics.</summary>
     public static Loaded<Manifest> Read(string path)
     {
@@ -40,8 +53,14 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
     private static Loaded<Manifest> Read(Stream stream, string path)
     {
         using var reader = new DelimitedTextReader(stream, Delimiter.Auto);
+        const string expected = "a CSV file with header 'file,param' and one line per run";
         if (!reader.Read())
         {
+            if (reader.TooLong is not null)
+            {
+                return Loaded.Fail<Manifest>(reader.TooLongError(path, expected));
+            }
+
             return Loaded.Fail<Manifest>(new Diagnostic(Severity.Error, "empty-file",
                 "the manifest is empty; expected a header 'file,param' and one line per run", path));
         }
@@ -64,7 +83,6 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
 
         var labelCol = Col("label");
         var unitsCol = Col("units");
-        var dir = System.IO.Path.GetDirectoryName(System.IO.Path.GetFullPath(path)) ?? ".";
         var entries = new List<ManifestEntry>();
         var seen = new Dictionary<double, int>();
         while (reader.Read())
@@ -98,7 +116,12 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
 
             seen[param] = reader.LineNumber;
             string? Opt(int c) => c >= 0 && c < reader.FieldCount && reader.Field(c).Length > 0 ? reader.FieldText(c) : null;
-            entries.Add(new ManifestEntry(file, System.IO.Path.GetFullPath(System.IO.Path.Combine(dir, file)), param, Opt(labelCol), Opt(unitsCol), reader.LineNumber));
+            entries.Add(new ManifestEntry(file, param, Opt(labelCol), Opt(unitsCol)) { Line = reader.LineNumber });
+        }
+
+        if (reader.TooLong is not null)
+        {
+            return Loaded.Fail<Manifest>(reader.TooLongError(path, expected));
         }
 
         if (entries.Count == 0)

@@ -105,6 +105,11 @@ public static class RunReader
         using var reader = new DelimitedTextReader(stream, options.Delimiter);
         if (!reader.Read())
         {
+            if (reader.TooLong is not null)
+            {
+                return Loaded.Fail<RunRecording>(reader.TooLongError(name, ExpectedRunText));
+            }
+
             return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "empty-file",
                 "the file holds no data (only blank or # comment lines); expected a header such as 't,theta', 't,x,y' or 'spike_time' and one sample per line", name));
         }
@@ -241,6 +246,11 @@ public static class RunReader
             }
         }
         while (reader.Read());
+
+        if (reader.TooLong is not null)
+        {
+            return Loaded.Fail<RunRecording>(reader.TooLongError(name, ExpectedRunText));
+        }
 
         if (values[0].Count == 0)
         {
@@ -423,6 +433,8 @@ public static class RunReader
         Delimiter.Tab => "tabs",
         _ => "blanks",
     };
+
+    private const string ExpectedRunText = "delimited text (CSV) with one sample per line";
 
     private static Diagnostic Binary(string name, int line) => new(Severity.Error, "binary-file",
         "the file is not text (it holds control bytes or invalid UTF-8); expected a delimited text file (CSV) of samples: export the recording as text",

@@ -1,6 +1,7 @@
 using System.Text.Json;
 using NormalFormFit.Analysis;
 using NormalFormFit.Onset;
+using NormalFormFit.Smoothing;
 
 namespace NormalFormFit.Reporting;
 
@@ -172,6 +173,15 @@ public static class JsonReport
             Number(w, "lambda", sm.Lambda);
             Number(w, "noise_sd", sm.NoiseSd);
             Number(w, "edf", sm.EffectiveDegreesOfFreedom);
+            if (sm.Smoother is { } m)
+            {
+                w.WriteString("smoother", SmoothingMethodNames.Name(m));
+            }
+            else
+            {
+                w.WriteNull("smoother");
+            }
+
             w.WriteEndObject();
         }
 

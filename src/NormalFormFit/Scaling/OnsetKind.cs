@@ -80,6 +80,7 @@ public static class OnsetKind
 
         text += string.Create(Inv, $"period-law weights: saddle-node {weights.SaddleNode:F2}, homoclinic {weights.Homoclinic:F2}, finite period {weights.FinitePeriod:F2}");
         var betaHalf = ci.Low <= 0.5 + ScalingFit.EquivalenceMargin && ci.High >= 0.5 - ScalingFit.EquivalenceMargin;
+        var informative = double.IsFinite(ci.Width) && ci.Width <= ScalingFit.InformativeWidth;
         if (weights.BestWeight < DecisiveWeight)
         {
             return (OnsetKinds.Undetermined, text + "; no period law stands out: add runs closer to onset");
@@ -87,14 +88,16 @@ public static class OnsetKind
 
         switch (weights.Best)
         {
-            case "saddle-node" when betaHalf && speed.ReachesZero:
+            case "saddle-node" when betaHalf && informative && speed.ReachesZero:
                 return (OnsetKinds.SaddleNodeOnCircle, text + "; all three point to a saddle-node on the circle");
-            case "saddle-node" when betaHalf && speed.PeriodsOnly:
+            case "saddle-node" when betaHalf && informative && speed.PeriodsOnly:
                 return (OnsetKinds.SaddleNodeOnCircle, text + "; the exponent and the period laws point to a saddle-node on the circle (event times carry no phase velocity, so the minimum speed could not be weighed)");
             case "saddle-node":
-                return (OnsetKinds.Undetermined, text + (betaHalf
-                    ? "; the square-root law fits best but the minimum speed does not confirm a bottleneck closing"
-                    : "; the square-root law fits best but β excludes ½: runs may be too far from onset"));
+                return (OnsetKinds.Undetermined, text + (!betaHalf
+                    ? "; the square-root law fits best but β excludes ½: runs may be too far from onset"
+                    : !informative
+                        ? string.Create(Inv, $"; the square-root law fits best but the interval of β is wider than {ScalingFit.InformativeWidth:G}, too wide to confirm ½: add runs or record longer")
+                        : "; the square-root law fits best but the minimum speed does not confirm a bottleneck closing"));
             case "homoclinic" when !betaHalf:
                 var h = weights.Fits.First(f => f.Law == "homoclinic");
                 return (OnsetKinds.Homoclinic, text + string.Create(Inv,

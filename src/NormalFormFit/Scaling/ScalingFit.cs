@@ -65,6 +65,12 @@ public static class ScalingFit
     /// <summary>Half-width of the band around β = ½ within which an exponent counts as the square-root law.</summary>
     public const double EquivalenceMargin = 0.05;
 
+    /// <summary>
+    /// Widest 95% interval of β that can support a verdict: a wider one spans the exponents of more than one law (½ of
+    /// the saddle-node, near 0 for the logarithmic and finite laws, 1 and more) (common practice, no source).
+    /// </summary>
+    public const double InformativeWidth = 1.0;
+
     /// <summary>Fits the scaling law; null when fewer than four usable runs.</summary>
     public static ScalingResult? Fit(IReadOnlyList<PeriodPoint> runs)
     {
@@ -106,7 +112,7 @@ public static class ScalingFit
     {
         var text = string.Create(System.Globalization.CultureInfo.InvariantCulture,
             $"exponent β = {beta.Value:F3} (95% interval {ci.Low:F3} to {ci.High:F3}) from {runs} runs");
-        if (!double.IsFinite(ci.Width) || ci.Width > 1.0)
+        if (!double.IsFinite(ci.Width) || ci.Width > InformativeWidth)
         {
             return ("undetermined", text + "; the interval is too wide to tell the kind of onset: add runs closer to onset");
         }

@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Text;
+using NormalFormFit.Ingest;
 
 namespace NormalFormFit.Simulation;
 
@@ -10,7 +11,8 @@ namespace NormalFormFit.Simulation;
 /// <remarks>
 /// Numbers use the "R" format, which in .NET Core 3.0 and later is the shortest text that parses back to the same
 /// double: nothing is lost (unlike G10) and nothing is padded (unlike G17, which writes 0.01 as
-/// 0.01000000000000000021). Fields with commas, quotes or line breaks are quoted as in RFC 4180.
+/// 0.01000000000000000021). Fields with commas or quotes (or blanks at an end, or a leading #) are
+/// quoted as in RFC 4180; line breaks are refused (the reader reads one row per line).
 /// </remarks>
 public static class RunWriter
 {
@@ -59,26 +61,36 @@ public static class RunWriter
     }
 
     /// <summary>
-    /// Writes a manifest with header <c>file,param</c>, plus a <c>label</c> column when any entry has a label.
+    /// Writes a manifest with header <c>file,param</c>, plus a <c>label</c> column when any entry has a label and a
+    /// <c>units</c> column when any has units: the layout <see cref="Manifest.Read(string)"/> reads back.
     /// </summary>
     /// <param name="path">Target file; its folder must exist. An existing file is replaced.</param>
-    /// <param name="entries">The rows, in order.</param>
+    /// <param name="entries">The rows, in order (their <see cref="ManifestEntry.Line"/> is not written).</param>
+    /// <exception cref="ArgumentException">A file name is empty, or a field holds a line break.</exception>
     public static void WriteManifest(string path, IReadOnlyList<ManifestEntry> entries)
     {
         ArgumentException.ThrowIfNullOrWhiteSpace(path);
         ArgumentNullException.ThrowIfNull(entries);
         var withLabel = false;
+        var withUnits = false;
         foreach (var entry in entries)
         {
             ArgumentNullException.ThrowIfNull(entry, nameof(entries));
             ArgumentException.ThrowIfNullOrWhiteSpace(entry.File, nameof(entries));
             withLabel |= entry.Label is not null;
+            withUnits |= entry.Units is not null;
+            if ($"{entry.File}{entry.Label}{entry.Units}".AsSpan().IndexOfAny('\r', '\n') >= 0)
+            {
+                throw new ArgumentException("A manifest field cannot hold a line break (the manifest reader reads one row per line).", nameof(entries));
+            }
         }
 
         WriteAtomically(path, writer =>
         {
             Span<char> buffer = stackalloc char[32];
-            writer.Write(withLabel ? "file,param,label\n" : "file,param\n");
+            writer.Write("file,param");
+            writer.Write(withLabel ? ",label" : string.Empty);
+            writer.Write(withUnits ? ",units\n" : "\n");
             foreach (var entry in entries)
             {
                 writer.Write(Quote(entry.File));
@@ -88,6 +100,12 @@ public static class RunWriter
                 {
                     writer.Write(',');
                     writer.Write(Quote(entry.Label ?? string.Empty));
+                }
+
+                if (withUnits)
+                {
+                    writer.Write(',');
+                    writer.Write(Quote(entry.Units ?? string.Empty));
                 }
 
                 writer.Write('\n');
@@ -149,6 +167,10 @@ public static class RunWriter
         writer.Write(buffer[..written]);
     }
 
+    // Quoted when the reader would otherwise misread it: separators or quotes inside, blanks at either end (trimmed),
+    // a leading '#' (a comment line when in the first field).
     private static string Quote(string field) =>
-        field.AsSpan().IndexOfAny(",\"\r\n") < 0 ? field : "\"" + field.Replace("\"", "\"\"", StringComparison.Ordinal) + "\"";
+        field.AsSpan().IndexOfAny(",\"") < 0 && field.Trim() == field && !field.StartsWith('#')
+            ? field
+            : "\"" + field.Replace("\"", "\"\"", StringComparison.Ordinal) + "\"";
 }

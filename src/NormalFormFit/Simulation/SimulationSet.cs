@@ -1,4 +1,5 @@
 using System.Globalization;
+using NormalFormFit.Ingest;
 
 namespace NormalFormFit.Simulation;
 

@@ -38,3 +38,25 @@ public enum SmoothingMethod
     /// <summary>Always the penalised regression spline with fewer knots (<see cref="PenalizedSpline"/>).</summary>
     Penalized,
 }
+
+/// <summary>Stable names of the smoothers in the JSON report and run lines (part of the JSON contract).</summary>
+public static class SmoothingMethodNames
+{
+    /// <summary>The name of <paramref name="method"/>: "exact-spline", "penalized-spline" or "auto".</summary>
+    public static string Name(SmoothingMethod method) => method switch
+    {
+        SmoothingMethod.Exact => "exact-spline",
+        SmoothingMethod.Penalized => "penalized-spline",
+        SmoothingMethod.Auto => "auto",
+        _ => throw new ArgumentOutOfRangeException(nameof(method), method, "unknown smoothing method"),
+    };
+
+    /// <summary>The method named <paramref name="name"/>, or null when the name is none of <see cref="Name"/>'s.</summary>
+    public static SmoothingMethod? Parse(string? name) => name switch
+    {
+        "exact-spline" => SmoothingMethod.Exact,
+        "penalized-spline" => SmoothingMethod.Penalized,
+        "auto" => SmoothingMethod.Auto,
+        _ => null,
+    };
+}

@@ -55,6 +55,8 @@ public class AnalyzeCommandTests
             Assert.True(run.GetProperty("period").TryGetProperty(key, out _), key);
         }
 
+        Assert.Equal("exact-spline", run.GetProperty("smoothing").GetProperty("smoother").GetString());
+        Assert.True(run.GetProperty("smoothing").GetProperty("lambda").GetDouble() > 0);
         Assert.Equal(JsonValueKind.Array, run.GetProperty("flags").ValueKind);
         Assert.Equal(JsonValueKind.Array, root.GetProperty("diagnostics").ValueKind);
     }

@@ -17,6 +17,7 @@ public class FileFormTests
         { "whitespace, comments, extra column", "# lab export\n  t   theta  gain\n0 0.5 1\n# pause\n0.25 1.5 1\n0.5  -3 1\n" },
         { "no header", "0,0.5\n0.25,1.5\n0.5,-3\n" },
         { "quoted header, reordered columns", "\"theta\",\"t\"\n0.5,0\n1.5,0.25\n-3,0.5\n" },
+        { "quoted fields with separators and quotes inside (RFC 4180 §2)", "t,theta,note\n0,0.5,\"start, \"\"cold\"\"\"\n\"0.25\",1.5,\"\"\n0.5,-3, \"a,b\" \n" },
     };
 
     [Theory]
@@ -28,6 +29,38 @@ public class FileFormTests
         Assert.Equal(RecordingKind.Phase, r.Value!.Kind);
         Assert.Equal([0, 0.25, 0.5], r.Value.Phase!.Time);
         Assert.Equal([0.5, 1.5, -3], r.Value.Phase.Phase);
+    }
+
+    [Fact]
+    public void Manifest_WithQuotedFields_ReadsTheTextBetweenTheQuotes()
+    {
+        // RFC 4180 §2: a quoted field may hold the separator, and "" inside it stands for one quote.
+        var path = Path.Combine(Path.GetTempPath(), $"nffit-manifest-{Guid.NewGuid():N}.csv");
+        File.WriteAllText(path, "file,param,label,units\n\"a,b.csv\",1.5,\"say \"\"hi\"\", twice\",\n\"c.csv\" , 2 ,plain,mA\n");
+        try
+        {
+            var entries = Manifest.Read(path).Value!.Entries;
+
+            Assert.Equal(["a,b.csv", "c.csv"], entries.Select(e => e.File));
+            Assert.Equal([1.5, 2.0], entries.Select(e => e.Param));
+            Assert.Equal(["say \"hi\", twice", "plain"], entries.Select(e => e.Label));
+            Assert.Equal([null, "mA"], entries.Select(e => e.Units));
+        }
+        finally
+        {
+            File.Delete(path);
+        }
+    }
+
+    [Fact]
+    public void CommentLineOfExactlyOneMiB_IsWithinTheLineLimitAndRead()
+    {
+        // The limit is 1 MiB = 1 048 576 bytes per line, line end excluded (docs/input-formats.md): the boundary is legal.
+        var comment = "#" + new string('c', (1 << 20) - 1);
+        var r = Read($"t,theta\n{comment}\n0,0.5\n0.25,1.5\n0.5,-3\n");
+
+        Assert.True(r.Succeeded, string.Join("; ", r.Diagnostics));
+        Assert.Equal([0, 0.25, 0.5], r.Value!.Phase!.Time);
     }
 
     [Fact]

@@ -51,7 +51,41 @@ public class MalformedInputTests
         Bad("phase-kind-forced-on-positions.csv", "t,x,y\n0,1,2\n", 1, 1, "no phase column 'theta' in the header", "--kind", "phase"),
         Bad("positions-kind-forced-on-phase.csv", "t,theta\n0,1\n", 1, 1, "no x column 'x' in the header", "--kind", "positions"),
         Bad("column-beyond-line.csv", "0,1\n0.1,2\n", 1, 1, "the phase column is 5", "--phase-column", "5"),
+
+        // Lines over the 1 MiB limit (docs/input-formats.md) stop the reading at the first byte beyond it.
+        new BadRun("no-line-end.csv", [.. T("t,theta\n0,0\n0."), .. Enumerable.Repeat((byte)'7', OneMiB)], 3, OneMiB + 1, "longer than 1 MiB (1 048 576 bytes) without a line end", []),
+        new BadRun("binary-no-line-end.csv", [.. T("t,theta\n"), .. Garbage(2 * OneMiB)], 2, OneMiB + 1, "the file is not text", []),
+        new BadRun("cr-line-ends.csv", T(CrOnlyPhaseFile(OneMiB + 1)), 1, OneMiB + 1, "end in CR alone: convert the line ends to LF or CRLF", []),
     };
+
+    private const int OneMiB = 1 << 20;
+
+    // Seeded ASCII bytes without a line feed (one character per byte, so the column is the byte position), NULs included.
+    private static byte[] Garbage(int n)
+    {
+        var random = new Random(12);
+        var bytes = new byte[n];
+        random.NextBytes(bytes);
+        for (var i = 0; i < n; i++)
+        {
+            bytes[i] = (byte)(bytes[i] & 0x7F);
+            bytes[i] = bytes[i] == (byte)'\n' ? (byte)0 : bytes[i];
+        }
+
+        return bytes;
+    }
+
+    // A good phase file of at least n bytes whose lines end in CR alone (old Mac line ends): one line to the reader.
+    private static string CrOnlyPhaseFile(int n)
+    {
+        var sb = new StringBuilder("t,theta\r");
+        for (var i = 0; sb.Length < n; i++)
+        {
+            sb.Append(i).Append(",0.5\r");
+        }
+
+        return sb.ToString();
+    }
 
     [Theory]
     [MemberData(nameof(RunCases))]
@@ -101,6 +135,20 @@ public class MalformedInputTests
             Assert.Contains($"manifest.csv:{l}:", stderr, StringComparison.Ordinal);
         }
 
+        AssertClean(stderr, stdout);
+    }
+
+    [Fact]
+    public void ManifestWithALineOverOneMiB_GivesOneMessageWithLineAndColumnAndExitCodeTwo()
+    {
+        using var files = new RecordingFiles();
+        var manifest = files.WriteBytes("manifest.csv", [.. T("file,param\nrun.csv,"), .. Enumerable.Repeat((byte)'1', OneMiB)]);
+
+        var (code, stdout, stderr) = Run(["analyze", manifest]);
+
+        Assert.Equal(2, code);
+        Assert.Contains($"manifest.csv:2:{OneMiB + 1}: error: the line is longer than 1 MiB", stderr, StringComparison.Ordinal);
+        Assert.Contains("expected a CSV file with header 'file,param'", stderr, StringComparison.Ordinal);
         AssertClean(stderr, stdout);
     }
 

@@ -1,4 +1,9 @@
 using System.Diagnostics;
+using System.Net;
+using System.Text;
+using System.Text.RegularExpressions;
+using NormalFormFit.Reporting.Figures;
+using NormalFormFit.Reporting.Html;
 using SkiaSharp;
 
 namespace NormalFormFit.Tests.Reporting;
@@ -100,6 +105,78 @@ public class ChromiumReportTests(DemoFolder demo)
         var console = Chromium.Open(page, Path.Combine(demo.Root, "bad.png"), 400, 300);
 
         Assert.Contains(console, l => l.Contains("broken page", StringComparison.Ordinal));
+    }
+
+    [ChromiumFact]
+    public void EmbeddedFontSubset_RendersPixelForPixelAsTheWholeFont_AndTheCheckSeesMissingHintingReferences()
+    {
+        // The same text of the demo page, regular and bold at the page's sizes, three times in one screenshot: with the
+        // whole DejaVu faces (the reference), with the subset faces the page embeds, and with a subset of the page's
+        // characters alone, without HtmlReport.HintingReferences (the control: FreeType's auto-hinter then measures
+        // other alignment zones, so some glyph edges must differ).
+        Assert.True(Chromium.Path is not null, "chromium is required under CI=true: .ci/install-browser installs it");
+        var page = HtmlReport.Build(DemoReport.Report, [.. DemoReport.Figures.Select(f => (f, f.Svg()))]);
+        var text = WebUtility.HtmlDecode(Regex.Replace(Regex.Replace(page, "<style>.*?</style>", string.Empty, RegexOptions.Singleline), "<[^>]+>", "\n"));
+        var lines = text.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).Distinct().Take(45).ToList();
+        var pageOnly = new SortedSet<int>(text.EnumerateRunes().SelectMany(r => new[] { r.Value, Rune.ToUpperInvariant(r).Value, Rune.ToLowerInvariant(r).Value }));
+        var embedded = EmbeddedFontTests.EmbeddedFaces(page).ToDictionary(f => f.Bold, f => f.Bytes);
+        var faces = new[]
+        {
+            (Family: "whole", Regular: FigureFonts.FontBytes(false), Bold: FigureFonts.FontBytes(true)),
+            (Family: "subset", Regular: embedded[false], Bold: embedded[true]),
+            (Family: "control", Regular: FontSubset.Subset(FigureFonts.FontBytes(false), pageOnly)!, Bold: FontSubset.Subset(FigureFonts.FontBytes(true), pageOnly)!),
+        };
+        const int block = 1000;
+        var html = new StringBuilder("<!DOCTYPE html><html><head><meta charset=\"utf-8\"><style>html{overflow:hidden}body{margin:0;background:#fff;color:#1e1e24}");
+        html.Append("div.b{position:absolute;box-sizing:border-box;left:0;width:1000px;height:").Append(block).Append("px;overflow:hidden;padding:8px}p{margin:0}");
+        foreach (var (family, regular, bold) in faces)
+        {
+            html.Append("@font-face{font-family:").Append(family).Append(";src:url(data:font/ttf;base64,").Append(Convert.ToBase64String(regular)).Append(")}");
+            html.Append("@font-face{font-family:").Append(family).Append(";font-weight:bold;src:url(data:font/ttf;base64,").Append(Convert.ToBase64String(bold)).Append(")}");
+        }
+
+        html.Append("</style></head><body>");
+        for (var k = 0; k < faces.Length; k++)
+        {
+            html.Append("<div class=\"b\" style=\"top:").Append(k * block).Append("px;font-family:").Append(faces[k].Family).Append("\">");
+            for (var i = 0; i < lines.Count; i++)
+            {
+                var style = (i % 4) switch { 0 => "font:bold 21px/1.5", 1 => "font:14px/1.5", 2 => "font:bold 13px/1.5", _ => "font:16px/1.5" };
+                html.Append("<p style=\"").Append(style).Append(' ').Append(faces[k].Family).Append("\">").Append(WebUtility.HtmlEncode(lines[i])).Append("</p>");
+            }
+
+            html.Append("</div>");
+        }
+
+        var file = Path.Combine(demo.Root, "fonts.html");
+        File.WriteAllText(file, html.Append("</body></html>").ToString());
+        var shot = Path.Combine(demo.Root, "fonts.png");
+
+        Assert.Empty(Chromium.Open(file, shot, 1000, faces.Length * block));
+        using var bitmap = SKBitmap.Decode(shot);
+        var (subsetDiffers, ink) = DifferingPixels(bitmap, block, 1);
+        var (controlDiffers, _) = DifferingPixels(bitmap, block, 2);
+
+        Assert.True(ink > 10_000, $"only {ink} ink pixels in the reference block");
+        Assert.Equal(0, subsetDiffers);
+        Assert.True(controlDiffers > 0, "the control rendered identically: the comparison cannot see hinting differences");
+    }
+
+    // Pixels of block k that differ from block 0, and the ink pixels of block 0.
+    private static (int Differ, int Ink) DifferingPixels(SKBitmap bitmap, int block, int k)
+    {
+        int differ = 0, ink = 0;
+        for (var y = 0; y < block; y++)
+        {
+            for (var x = 0; x < bitmap.Width; x++)
+            {
+                var a = bitmap.GetPixel(x, y);
+                differ += a != bitmap.GetPixel(x, y + (k * block)) ? 1 : 0;
+                ink += a.Red + a.Green + a.Blue < 3 * 200 ? 1 : 0;
+            }
+        }
+
+        return (differ, ink);
     }
 
     private static (double Dark, int Colours, bool Blue) Ink(SKBitmap bitmap)

@@ -1,4 +1,5 @@
 using System.Globalization;
+using NormalFormFit.Ingest;
 using NormalFormFit.Simulation;
 
 namespace NormalFormFit.Tests.Simulation;
@@ -110,6 +111,35 @@ public sealed class RunWriterTests : IDisposable
         Assert.Equal(
             ["file,param,label", "run-00.csv,1.05,plain", "\"a,b.csv\",-0.1,\"say \"\"hi\"\"\"", "run-02.csv,2,"],
             File.ReadAllLines(path));
+    }
+
+    [Fact]
+    public void WriteManifest_ThenManifestRead_GivesBackTheSameEntries()
+    {
+        // The writer and the reader share one row type: whatever is written reads back, including fields the writer must
+        // quote (separator, quote, blanks at an end, a leading '#') and the units column.
+        var path = Path.Combine(folder, "manifest.csv");
+        ManifestEntry[] entries = [
+            new("run-00.csv", 1.05, "plain", "mA"),
+            new("a,b.csv", -0.1, "say \"hi\""),
+            new("sub/run-02.csv", 0.1 + 0.2, null, "mA"),
+            new("#3.csv", 4, " padded ", "m A"),
+        ];
+        RunWriter.WriteManifest(path, entries);
+
+        var read = Manifest.Read(path);
+
+        Assert.Empty(read.Diagnostics);
+        Assert.Equal([2, 3, 4, 5], read.Value!.Entries.Select(e => e.Line));
+        Assert.Equal(entries, read.Value.Entries.Select(e => e with { Line = 0 }));
+        Assert.Equal(Path.Combine(folder, "sub", "run-02.csv"), read.Value.FullPathOf(read.Value.Entries[2]));
+    }
+
+    [Fact]
+    public void WriteManifest_OfALabelWithALineBreak_ThrowsAndWritesNothing()
+    {
+        Assert.Throws<ArgumentException>(() => RunWriter.WriteManifest(Path.Combine(folder, "manifest.csv"), [new ManifestEntry("r.csv", 1, "two\nlines")]));
+        Assert.Empty(Directory.EnumerateFileSystemEntries(folder));
     }
 
     [Fact]
