@@ -23,7 +23,7 @@ public abstract class CompareCalibrationRepeats
     public static readonly double[] Truth = [1.0, 0.12, 0.05, 0.9];
     public static readonly double OnsetTruth = (1.027010688 - 0.05) / 0.9;
 
-    protected CompareCalibrationRepeats(double[] labs, int firstSeed, int seedStride)
+    protected CompareCalibrationRepeats(double[] labs, int firstSeed, int seedStride, double diffusion = 0.0)
     {
         Count = int.TryParse(Environment.GetEnvironmentVariable("NFFIT_COMPARE_REPEATS"), CultureInfo.InvariantCulture, out var n) ? n : 40;
         var first = int.TryParse(Environment.GetEnvironmentVariable("NFFIT_COMPARE_FIRST_SEED"), CultureInfo.InvariantCulture, out var s) ? s : firstSeed;
@@ -38,6 +38,7 @@ public abstract class CompareCalibrationRepeats
                 Revolutions = 6,
                 SamplingInterval = 0.05,
                 MeasurementNoise = 0.01,
+                DynamicNoise = diffusion,
                 Seed = first + (seedStride * r) + i,
             }))).ToList();
             return ModelComparer.Compare(runs, expr).Value!;
@@ -56,6 +57,12 @@ public sealed class FourRunRepeats() : CompareCalibrationRepeats([1.15, 1.3, 1.5
 
 /// <summary>Six runs crowding towards onset, μ_lab = 1.15 … 1.8, the nearest 6% above it (seeds 10000 + 17r + i).</summary>
 public sealed class SixRunNearOnsetRepeats() : CompareCalibrationRepeats([1.15, 1.2, 1.3, 1.45, 1.6, 1.8], 10_000, 17);
+
+/// <summary>
+/// Four runs as above whose phase also diffuses, dθ = f dt + √(2D) dW with D = 0.003 rad²/time (seeds 70000 + 10r + i):
+/// the replicates must carry the diffusion the runs show, or the SEs come out 5–20 times too small.
+/// </summary>
+public sealed class FourRunDiffusingRepeats() : CompareCalibrationRepeats([1.15, 1.3, 1.5, 1.8], 70_000, 10, diffusion: 0.003);
 
 /// <summary>
 /// Calibration of the verdict and the intervals. Bands from the binomial distribution (SciPy 1.10.1
@@ -135,3 +142,6 @@ public sealed class FourRunCalibrationTests(FourRunRepeats repeats, ITestOutputH
 
 public sealed class SixRunNearOnsetCalibrationTests(SixRunNearOnsetRepeats repeats, ITestOutputHelper output)
     : CompareCalibrationChecks(repeats, output), IClassFixture<SixRunNearOnsetRepeats>;
+
+public sealed class FourRunDiffusingCalibrationTests(FourRunDiffusingRepeats repeats, ITestOutputHelper output)
+    : CompareCalibrationChecks(repeats, output), IClassFixture<FourRunDiffusingRepeats>;
