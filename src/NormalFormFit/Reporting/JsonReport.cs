@@ -55,6 +55,9 @@ public static class JsonReport
         w.WriteString("evidence", s?.Evidence ?? "fewer than four runs with timed periods");
         Number(w, "onset", s?.Onset.Value ?? double.NaN);
         Number(w, "runs", s?.Runs ?? 0);
+        w.WriteString("form", s?.Form ?? Scaling.ScalingForms.PowerLaw);
+        Number(w, "offset", s?.Offset?.Value ?? double.NaN);
+        Number(w, "offset_se", s?.Offset?.StandardError ?? double.NaN);
         ScalingEvidence(w, s);
         w.WriteEndObject();
         NextMeasurements(w, report);

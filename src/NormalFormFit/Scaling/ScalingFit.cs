@@ -9,11 +9,24 @@ namespace NormalFormFit.Scaling;
 /// <param name="StandardError">Standard error of the mean period.</param>
 public readonly record struct PeriodPoint(double Mu, double Period, double StandardError);
 
-/// <summary>The fitted scaling law T = C·|μ − μc|^(−β)·exp(κ₁d + κ₂d²), d = |μ − μc| and the verdict on the kind of onset.</summary>
+/// <summary>Stable names of the forms of the scaling law (part of the JSON contract, <c>scaling.form</c>).</summary>
+public static class ScalingForms
+{
+    /// <summary>T = C·d^(−β)·exp(κ₁d + κ₂d²), fitted on log T.</summary>
+    public const string PowerLaw = "power-law";
+
+    /// <summary>T = C·d^(−β) + T₀ (+ s·d), fitted on T.</summary>
+    public const string PowerLawWithOffset = "power-law-with-offset";
+}
+
+/// <summary>
+/// The fitted scaling law, T = C·d^(−β)·exp(κ₁d + κ₂d²) or T = C·d^(−β) + T₀ (+ s·d) with d = |μ − μc|, and the
+/// verdict on the kind of onset.
+/// </summary>
 /// <param name="Exponent">β with its standard error.</param>
 /// <param name="Ci95">95% interval of β (Student-t, n − p degrees of freedom).</param>
 /// <param name="Onset">μc of this fit with its standard error.</param>
-/// <param name="Correction">κ (0 when the first-order correction was not kept).</param>
+/// <param name="Correction">κ₁ (0 when the first-order correction was not kept or the form has an offset).</param>
 /// <param name="Runs">Runs used.</param>
 /// <param name="Verdict">One of <c>saddle-node-on-circle</c>, <c>homoclinic</c>, <c>finite-period</c>, <c>undetermined</c>.</param>
 /// <param name="Evidence">Plain-words evidence for the verdict.</param>
@@ -31,15 +44,33 @@ public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate On
     /// </summary>
     public IReadOnlyList<double> LogModel { get; init; } = [];
 
+    /// <summary>Which form was chosen by AICc: <see cref="ScalingForms.PowerLaw"/> or <see cref="ScalingForms.PowerLawWithOffset"/>.</summary>
+    public string Form { get; init; } = ScalingForms.PowerLaw;
+
+    /// <summary>T₀ of the form with an offset, with its standard error (null for the log-T form).</summary>
+    public Estimate? Offset { get; init; }
+
+    /// <summary>The form with an offset, T = C·d^(−β) + T₀ (+ s·d), as [C, β, T₀(, s)] (empty for the log-T form).</summary>
+    public IReadOnlyList<double> OffsetModel { get; init; } = [];
+
+    /// <summary>True when a fitted curve is recorded (<see cref="PeriodAt"/> gives numbers).</summary>
+    public bool HasCurve => LogModel.Count >= 2 || OffsetModel.Count >= 3;
+
     /// <summary>The fitted period at <paramref name="mu"/> (NaN on the wrong side of μc or without a model).</summary>
     public double PeriodAt(double mu)
     {
+        var d = Math.Abs(mu - Onset.Value);
+        if (OffsetModel.Count >= 3)
+        {
+            var t = (OffsetModel[0] * Math.Pow(d, -OffsetModel[1])) + OffsetModel[2] + (OffsetModel.Count > 3 ? OffsetModel[3] * d : 0);
+            return d > 0 ? t : double.NaN;
+        }
+
         if (LogModel.Count < 2)
         {
             return double.NaN;
         }
 
-        var d = Math.Abs(mu - Onset.Value);
         var y = LogModel[0] - (LogModel[1] * Math.Log(d));
         for (var k = 2; k < LogModel.Count; k++)
         {
@@ -51,14 +82,22 @@ public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate On
 }
 
 /// <summary>
-/// Fits the period scaling T = C(μ−μc)^(−β), with up to two correction terms exp(κ₁d + κ₂d²), on log T.
+/// Fits the period scaling T = C(μ−μc)^(−β), either with up to two correction terms exp(κ₁d + κ₂d²) on log T, or
+/// with an additive offset T₀ (+ s·d) on T; AICc chooses.
 /// </summary>
 /// <remarks>
-/// A saddle-node on the circle gives β = ½ (T ≈ π/√(ab) with a ∝ μ − μc; Strogatz, Nonlinear Dynamics and
-/// Chaos, 2nd ed., §4.3). Weighted least squares of log T with σ = se(T)/T; μc profiled (grid, then golden
-/// section), c, β, κ linear given μc; the number of κ terms (0–2, keeping two residual degrees of freedom) chosen by AICc. Covariance from the Jacobian of all
-/// parameters, scaled by the reduced χ²; the interval of β uses Student-t with n − p degrees of freedom.
-/// Minimum: four runs (five with κ).
+/// <para>A saddle-node on the circle gives β = ½ (T ≈ π/√(ab) with a ∝ μ − μc; Strogatz, Nonlinear Dynamics and
+/// Chaos, 2nd ed., §4.3). Log-T form: weighted least squares of log T with σ = se(T)/T; μc profiled (grid, then Brent),
+/// c, β, κ linear given μc; 0–2 κ terms, keeping two residual degrees of freedom. Offset form:
+/// <see cref="OffsetPowerLawFit"/> (μc and β profiled, C &gt; 0); a constant excursion time T₀ puts a d^β term into
+/// log T that the κ terms cannot follow, and biases β low there.</para>
+/// <para>One likelihood for all forms: each is a Gaussian density of the measured periods with errors s·se(T)
+/// (s a common scale, estimated). The log-T form is a density of log T; its density of T carries the Jacobian
+/// 1/Tᵢ, and with σᵢ = se(Tᵢ)/Tᵢ at the measured Tᵢ that factor cancels the change of scale exactly:
+/// ln σᵢ + ln Tᵢ = ln se(Tᵢ). So −2 ln L = n ln(χ²/n) + n + Σ ln(2π se(Tᵢ)²) in both, and
+/// AICc = n ln(χ²/n) + 2k + 2k(k + 1)/(n − k − 1), k = parameters + 1 (Hurvich &amp; Tsai 1989), compares them.</para>
+/// <para>Covariance from the Jacobian of all parameters, scaled by the reduced χ² (Birge ratio); the interval of β
+/// uses Student-t with n − p degrees of freedom. Minimum: four runs (five with κ₁, six with the offset).</para>
 /// </remarks>
 public static class ScalingFit
 {
@@ -74,39 +113,86 @@ public static class ScalingFit
     /// <summary>Fits the scaling law; null when fewer than four usable runs.</summary>
     public static ScalingResult? Fit(IReadOnlyList<PeriodPoint> runs)
     {
-        ArgumentNullException.ThrowIfNull(runs);
-        var pts = runs.Where(r => r.Period > 0 && r.StandardError > 0 && double.IsFinite(r.StandardError)).OrderBy(r => r.Mu).ToArray();
-        if (pts.Length < 4)
+        var candidates = Candidates(runs);
+        if (candidates.Count == 0)
         {
             return null;
+        }
+
+        var f = candidates.MinBy(c => c.Aicc);
+        var n = f.Dof + f.Parameters;
+        var q = f.Dof > 0 ? StudentT.InvCDF(0, 1, f.Dof, 0.975) : double.PositiveInfinity;
+        var beta = new Estimate(f.Beta, f.BetaSe);
+        var ci = new Interval(f.Beta - (q * f.BetaSe), f.Beta + (q * f.BetaSe));
+        var (verdict, evidence) = Judge(beta, ci, n);
+        return f.Form == ScalingForms.PowerLawWithOffset
+            ? new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), 0, n, verdict, evidence)
+            {
+                Form = f.Form,
+                Offset = f.Offset,
+                OffsetModel = f.Coefficients,
+            }
+            : new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), f.Kappa, n, verdict, evidence) { LogModel = f.Coefficients };
+    }
+
+    /// <summary>
+    /// Every form that could be fitted, with its AICc on the common likelihood of the periods: the log-T form with 0–2
+    /// κ terms and the form with an offset without and with s·d. Empty when fewer than four usable runs.
+    /// </summary>
+    internal static IReadOnlyList<Solution> Candidates(IReadOnlyList<PeriodPoint> runs)
+    {
+        ArgumentNullException.ThrowIfNull(runs);
+        var pts = runs.Where(r => r.Period > 0 && r.StandardError > 0 && double.IsFinite(r.StandardError)).OrderBy(r => r.Mu).ToArray();
+        var found = new List<Solution>();
+        if (pts.Length < 4)
+        {
+            return found;
         }
 
         // Turning side: where the period shortens.
         var side = pts[^1].Period < pts[0].Period ? 1 : -1;
         var edge = side > 0 ? pts[0].Mu : pts[^1].Mu;
         var span = pts[^1].Mu - pts[0].Mu;
-        var best = FitWith(pts, side, edge, span, corrections: 0);
-        for (var k = 1; k <= 2 && pts.Length - (3 + k) >= 2; k++)
+        for (var k = 0; k <= 2 && (k == 0 || pts.Length - (3 + k) >= 2); k++)
         {
-            var withK = FitWith(pts, side, edge, span, corrections: k);
-            if (withK is not null && (best is null || withK.Value.Aicc < best.Value.Aicc))
+            if (FitWith(pts, side, edge, span, corrections: k) is { } withK)
             {
-                best = withK;
+                found.Add(withK);
             }
         }
 
-        if (best is null)
+        // The power law with an additive offset, T = C·d^(−β) + T₀ (+ s·d), on the same likelihood of T.
+        foreach (var linear in new[] { false, true })
         {
-            return null;
+            if (OffsetPowerLawFit.Fit(pts, side, edge, span, linear) is { } o)
+            {
+                found.Add(FromOffset(o, pts.Length));
+            }
         }
 
-        var f = best.Value;
-        var q = f.Dof > 0 ? StudentT.InvCDF(0, 1, f.Dof, 0.975) : double.PositiveInfinity;
-        var beta = new Estimate(f.Beta, f.BetaSe);
-        var ci = new Interval(f.Beta - (q * f.BetaSe), f.Beta + (q * f.BetaSe));
-        var (verdict, evidence) = Judge(beta, ci, pts.Length);
-        return new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), f.Kappa, pts.Length, verdict, evidence) { LogModel = f.Coefficients };
+        return found;
     }
+
+    // AICc = n ln(χ²/n) + 2k + 2k(k + 1)/(n − k − 1), k = parameters + 1 (the variance scale), Hurvich & Tsai 1989.
+    // The log-T forms and the offset form give the same constant in −2 ln L of the measured periods (see the class
+    // remarks), so their AICc compare directly.
+    private static double Aicc(double chi2, int n, int parameters)
+    {
+        var k = parameters + 1;
+        return n - k - 1 > 0
+            ? (n * Math.Log(Math.Max(chi2, 1e-300) / n)) + (2 * k) + (2.0 * k * (k + 1) / (n - k - 1))
+            : double.PositiveInfinity;
+    }
+
+    private static Solution FromOffset(OffsetPowerLawSolution o, int n) =>
+        new(o.MuC, o.Beta, o.BetaSe, o.MuCSe, 0, n - o.Parameters, Aicc(o.ChiSquare, n, o.Parameters))
+        {
+            Coefficients = [o.Coefficients[0], o.Beta, .. o.Coefficients[1..]],
+            Form = ScalingForms.PowerLawWithOffset,
+            Corrections = o.Parameters - 4,
+            Parameters = o.Parameters,
+            Offset = new Estimate(o.Coefficients[1], o.CoefficientSe[1]),
+        };
 
     private static (string Verdict, string Evidence) Judge(Estimate beta, Interval ci, int runs)
     {
@@ -124,9 +210,20 @@ public static class ScalingFit
             : ("undetermined", text + "; excludes β = ½: not the square-root law of a saddle-node on the circle, or runs too far from onset");
     }
 
-    private readonly record struct Solution(double MuC, double Beta, double BetaSe, double MuCSe, double Kappa, int Dof, double Aicc)
+    /// <summary>One fitted form: μc, β and their errors, residual degrees of freedom and AICc.</summary>
+    internal readonly record struct Solution(double MuC, double Beta, double BetaSe, double MuCSe, double Kappa, int Dof, double Aicc)
     {
+        /// <summary>Fitted parameters, μc included.</summary>
+        public int Parameters { get; init; }
+
+        /// <summary>Terms beyond [c, β] (κ₁, κ₂) or beyond [C, β, T₀] (s).</summary>
+        public int Corrections { get; init; }
+
         public double[] Coefficients { get; init; } = [];
+
+        public string Form { get; init; } = ScalingForms.PowerLaw;
+
+        public Estimate? Offset { get; init; }
     }
 
     private static Solution? FitWith(PeriodPoint[] pts, int side, double edge, double span, int corrections)
@@ -182,11 +279,8 @@ public static class ScalingFit
 
         var red = chi2 / dof;
         var cov = (j.TransposeThisAndMultiply(j)).Inverse() * red;
-        var k2 = p + 1;
-        var aicc = n - k2 - 1 > 0
-            ? (n * Math.Log(Math.Max(chi2, 1e-300) / n)) + (2 * k2) + (2.0 * k2 * (k2 + 1) / (n - k2 - 1))
-            : double.PositiveInfinity;
-        return new Solution(muc, coef[1], Math.Sqrt(cov[1, 1]), Math.Sqrt(cov[p - 1, p - 1]), corrections > 0 ? coef[2] : 0, dof, aicc) { Coefficients = coef };
+        var aicc = Aicc(chi2, n, p);
+        return new Solution(muc, coef[1], Math.Sqrt(cov[1, 1]), Math.Sqrt(cov[p - 1, p - 1]), corrections > 0 ? coef[2] : 0, dof, aicc) { Coefficients = coef, Corrections = corrections, Parameters = p };
     }
 
     // Weighted linear least squares of log T on [1, −log d, (d)] for a given μc; returns χ².

@@ -43,6 +43,10 @@ public class AnalyzeCommandTests
             Assert.True(root.GetProperty("scaling").TryGetProperty(key, out _), key);
         }
 
+        // Additive keys: the form of the scaling law and its offset T₀ (null for the log-T form).
+        Assert.Contains(root.GetProperty("scaling").GetProperty("form").GetString(), new[] { "power-law", "power-law-with-offset" });
+        Assert.True(root.GetProperty("scaling").TryGetProperty("offset", out _));
+
         var run = root.GetProperty("runs")[0];
         Assert.Equal("run-00.csv", run.GetProperty("file").GetString());
         foreach (var key in new[] { "phase", "a", "a_se", "b", "b_se" })

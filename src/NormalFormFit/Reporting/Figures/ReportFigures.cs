@@ -251,11 +251,11 @@ public static partial class ReportFigures
         reference.LineWidth = 2.5f;
         reference.LegendText = "slope −½ (saddle-node on the circle)";
 
-        if (s.LogModel.Count >= 2)
+        if (s.HasCurve)
         {
             var fit = plot.Add.ScatterLine(gx, gx.Select(x => Math.Log10(s.PeriodAt(s.Onset.Value + Math.Pow(10, x)))).ToArray(), FigurePalette.Period);
             fit.LineWidth = 2;
-            fit.LegendText = string.Create(Inv, $"fitted law, β = {s.Exponent.Value:F3}{(s.LogModel.Count > 2 ? " (with correction terms)" : string.Empty)}");
+            fit.LegendText = string.Create(Inv, $"fitted law, β = {s.Exponent.Value:F3}{(s.Form == NormalFormFit.Scaling.ScalingForms.PowerLawWithOffset ? " (with offset T₀)" : s.LogModel.Count > 2 ? " (with correction terms)" : string.Empty)}");
         }
 
         var bars = plot.Add.ErrorBar(lx, ly, ls);
