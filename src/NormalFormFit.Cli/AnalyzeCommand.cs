@@ -116,46 +116,19 @@ internal static class AnalyzeCommand
         }
 
         var report = result.Value;
-        if (outDir is not null)
+        if (outDir is not null && !CommandOutput.TryWriteFolder(outDir, stderr, () => ReportFolder.Write(outDir, report, sourceName ?? "manifest", progress.Report), progress.Clear))
         {
-            try
-            {
-                ReportFolder.Write(outDir, report, sourceName ?? "manifest", progress.Report);
-                progress.Clear();
-            }
-            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-            {
-                progress.Clear();
-                stderr.WriteLine($"nffit: {outDir}: error: cannot write the report ({e.Message}); check that the folder is writable");
-                return ExitCodes.BadInput;
-            }
+            return ExitCodes.BadInput;
         }
 
-        if (jsonPath == "-")
+        if (jsonPath is not null && !CommandOutput.TryWriteJson(jsonPath, s => JsonReport.Write(report, s, NffitApp.Version), stdout, stderr))
         {
-            using var stdoutStream = new MemoryStream();
-            JsonReport.Write(report, stdoutStream, NffitApp.Version);
-            stdout.WriteLine(System.Text.Encoding.UTF8.GetString(stdoutStream.ToArray()));
+            return ExitCodes.BadInput;
         }
-        else
-        {
-            if (jsonPath is not null)
-            {
-                try
-                {
-                    AtomicFile.Write(jsonPath, s => JsonReport.Write(report, s, NffitApp.Version));
-                }
-                catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-                {
-                    stderr.WriteLine($"nffit: {jsonPath}: error: cannot write the JSON report ({e.Message}); check that the folder exists and is writable");
-                    return ExitCodes.BadInput;
-                }
-            }
 
-            if (!quiet)
-            {
-                stdout.Write(TextReport.Format(report));
-            }
+        if (jsonPath != "-" && !quiet)
+        {
+            stdout.Write(TextReport.Format(report));
         }
 
         return ExitCodes.Ok;

@@ -81,41 +81,17 @@ internal static class CompareCommand
         }
 
         var c = result.Value;
-        if (outDir is not null)
+        if (outDir is not null && !CommandOutput.TryWriteFolder(outDir, stderr, () => ReportFolder.Write(outDir, analysis.Value, Path.GetFileName(manifestPath), model: c)))
         {
-            try
-            {
-                ReportFolder.Write(outDir, analysis.Value, Path.GetFileName(manifestPath), model: c);
-            }
-            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-            {
-                stderr.WriteLine($"nffit: {outDir}: error: cannot write the report ({e.Message}); check that the folder is writable");
-                return ExitCodes.BadInput;
-            }
+            return ExitCodes.BadInput;
         }
 
-        if (jsonPath == "-")
+        if (jsonPath is not null && !CommandOutput.TryWriteJson(jsonPath, s => ComparisonJson.Write(c, s, NffitApp.Version), stdout, stderr))
         {
-            using var buffer = new MemoryStream();
-            ComparisonJson.Write(c, buffer, NffitApp.Version);
-            stdout.WriteLine(System.Text.Encoding.UTF8.GetString(buffer.ToArray()));
-            return ExitCodes.Ok;
+            return ExitCodes.BadInput;
         }
 
-        if (jsonPath is not null)
-        {
-            try
-            {
-                AtomicFile.Write(jsonPath, s => ComparisonJson.Write(c, s, NffitApp.Version));
-            }
-            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-            {
-                stderr.WriteLine($"nffit: {jsonPath}: error: cannot write the JSON report ({e.Message}); check that the folder exists and is writable");
-                return ExitCodes.BadInput;
-            }
-        }
-
-        if (!quiet)
+        if (jsonPath != "-" && !quiet)
         {
             stdout.Write(Format(c));
         }

@@ -122,34 +122,18 @@ public static class SquareRootLawFit
     /// Weighted least squares of T on d^((k−1)/2), k = 0 … m−1, for a given μc; returns χ² (+∞ when a run is not on
     /// the turning side).
     /// </summary>
-    internal static double Profile(IReadOnlyList<PeriodSample> points, int side, double muc, int coefficients, out double[] coef)
-    {
-        var n = points.Count;
-        var x = Matrix<double>.Build.Dense(n, coefficients);
-        var y = Vector<double>.Build.Dense(n);
-        for (var i = 0; i < n; i++)
+    internal static double Profile(IReadOnlyList<PeriodSample> points, int side, double muc, int coefficients, out double[] coef) =>
+        WeightedLinearFit.ChiSquare(points.Count, coefficients, (int i, double[] g, out double y, out double w) =>
         {
             var d = side * (points[i].Mu - muc);
-            if (!(d > 0))
+            for (var k = 0; k < g.Length; k++)
             {
-                coef = new double[coefficients];
-                return double.PositiveInfinity;
+                g[k] = Math.Pow(d, 0.5 * (k - 1));
             }
 
-            var w = 1.0 / points[i].StandardError;
-            for (var k = 0; k < coefficients; k++)
-            {
-                x[i, k] = Math.Pow(d, 0.5 * (k - 1)) * w;
-            }
-
-            y[i] = points[i].Period * w;
-        }
-
-        var c = x.QR().Solve(y);
-        coef = c.ToArray();
-        var r = y - (x * c);
-        return r.DotProduct(r);
-    }
+            (y, w) = (points[i].Period, 1.0 / points[i].StandardError);
+            return d > 0;
+        }, out coef);
 
     /// <summary>
     /// The first zero of <paramref name="excess"/> (negative at <paramref name="start"/>) walking in

@@ -114,37 +114,19 @@ internal static class OffsetPowerLawFit
     // Weighted linear least squares of T on [d^(−β), 1, (d)] for given μc and β; returns χ² (∞ outside the model).
     private static double Inner(PeriodPoint[] pts, int side, double muc, double beta, int m, out double[] coef)
     {
-        var n = pts.Length;
-        var x = Matrix<double>.Build.Dense(n, m);
-        var y = Vector<double>.Build.Dense(n);
-        for (var i = 0; i < n; i++)
+        var chi2 = WeightedLinearFit.ChiSquare(pts.Length, m, (int i, double[] g, out double y, out double w) =>
         {
             var d = side * (pts[i].Mu - muc);
-            if (!(d > 0))
-            {
-                coef = new double[m];
-                return double.PositiveInfinity;
-            }
-
-            var w = 1 / pts[i].StandardError;
-            x[i, 0] = Math.Pow(d, -beta) * w;
-            x[i, 1] = w;
+            g[0] = Math.Pow(d, -beta);
+            g[1] = 1.0;
             if (m > 2)
             {
-                x[i, 2] = d * w;
+                g[2] = d;
             }
 
-            y[i] = pts[i].Period * w;
-        }
-
-        var c = x.QR().Solve(y);
-        coef = c.ToArray();
-        if (!(coef[0] > 0))
-        {
-            return double.PositiveInfinity;
-        }
-
-        var r = y - (x * c);
-        return r.DotProduct(r);
+            (y, w) = (pts[i].Period, 1 / pts[i].StandardError);
+            return d > 0;
+        }, out coef);
+        return coef[0] > 0 ? chi2 : double.PositiveInfinity;
     }
 }

@@ -1,4 +1,3 @@
-using MathNet.Numerics.LinearAlgebra;
 
 namespace NormalFormFit.Scaling;
 
@@ -97,26 +96,11 @@ public static class PeriodLaws
         return new PeriodLawFit(law, edge - (side * Math.Exp(min.X)), min.Value, Aic(min.Value, pts.Length), min.GridIndex == min.GridPoints - 1);
     }
 
-    private static double Linear(PeriodPoint[] pts, double[] sig, Func<double, double[]> basis, out double[] coef)
-    {
-        var n = pts.Length;
-        var first = basis(pts[0].Mu);
-        var x = Matrix<double>.Build.Dense(n, first.Length);
-        var y = Vector<double>.Build.Dense(n);
-        for (var i = 0; i < n; i++)
+    private static double Linear(PeriodPoint[] pts, double[] sig, Func<double, double[]> basis, out double[] coef) =>
+        Numerics.WeightedLinearFit.ChiSquare(pts.Length, basis(pts[0].Mu).Length, (int i, double[] g, out double y, out double w) =>
         {
-            var g = basis(pts[i].Mu);
-            for (var k = 0; k < g.Length; k++)
-            {
-                x[i, k] = g[k] / sig[i];
-            }
-
-            y[i] = pts[i].Period / sig[i];
-        }
-
-        var c = x.QR().Solve(y);
-        coef = c.ToArray();
-        var r = y - (x * c);
-        return r.DotProduct(r);
-    }
+            basis(pts[i].Mu).CopyTo(g, 0);
+            (y, w) = (pts[i].Period, 1.0 / sig[i]);
+            return true;
+        }, out coef);
 }

@@ -284,35 +284,18 @@ public static class ScalingFit
     }
 
     // Weighted linear least squares of log T on [1, −log d, (d)] for a given μc; returns χ².
-    private static double Inner(PeriodPoint[] pts, int side, double muc, int corrections, out double[] coef)
-    {
-        var p = 2 + corrections;
-        var n = pts.Length;
-        var x = Matrix<double>.Build.Dense(n, p);
-        var y = Vector<double>.Build.Dense(n);
-        for (var i = 0; i < n; i++)
+    private static double Inner(PeriodPoint[] pts, int side, double muc, int corrections, out double[] coef) =>
+        Numerics.WeightedLinearFit.ChiSquare(pts.Length, 2 + corrections, (int i, double[] g, out double y, out double w) =>
         {
             var d = side * (pts[i].Mu - muc);
-            if (!(d > 0))
-            {
-                coef = new double[p];
-                return double.PositiveInfinity;
-            }
-
-            var w = pts[i].Period / pts[i].StandardError;
-            x[i, 0] = w;
-            x[i, 1] = -Math.Log(d) * w;
+            g[0] = 1.0;
+            g[1] = -Math.Log(d);
             for (var k = 1; k <= corrections; k++)
             {
-                x[i, 1 + k] = Math.Pow(d, k) * w;
+                g[1 + k] = Math.Pow(d, k);
             }
 
-            y[i] = Math.Log(pts[i].Period) * w;
-        }
-
-        var c = x.QR().Solve(y);
-        coef = c.ToArray();
-        var r = y - (x * c);
-        return r.DotProduct(r);
-    }
+            (y, w) = (Math.Log(pts[i].Period), pts[i].Period / pts[i].StandardError);
+            return d > 0;
+        }, out coef);
 }

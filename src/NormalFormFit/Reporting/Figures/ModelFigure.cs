@@ -1,6 +1,5 @@
 using NormalFormFit.Analysis;
 using NormalFormFit.Compare;
-using NormalFormFit.Field;
 using ScottPlot;
 
 namespace NormalFormFit.Reporting.Figures;
@@ -30,18 +29,9 @@ public static partial class ReportFigures
         for (var i = 0; i < runs.Count; i++)
         {
             var r = runs[i];
-            var f = r.Field!;
             var colour = FigurePalette.Run(i, runs.Count);
-            var pts = Enumerable.Range(0, f.Centres.Length)
-                .Where(j => double.IsFinite(f.Velocity[j]))
-                .Select(j => (X: Math.PI + RevolutionBlocks.WrapSigned(f.Centres[j] - Math.PI), V: f.Velocity[j], S: f.StandardError[j]))
-                .OrderBy(p => p.X)
-                .ToArray();
-            var xs = pts.Select(p => p.X).ToArray();
-            var fill = plot.Add.FillY(xs, [.. pts.Select(p => p.V - (1.96 * Finite(p.S)))], [.. pts.Select(p => p.V + (1.96 * Finite(p.S)))]);
-            fill.FillColor = colour.WithAlpha(0.22);
-            fill.LineWidth = 0;
-            var marks = plot.Add.ScatterPoints(xs, [.. pts.Select(p => p.V)], colour);
+            var (xs, values) = FieldWithBand(plot, r.Field!, Math.PI, colour);
+            var marks = plot.Add.ScatterPoints(xs, values, colour);
             marks.MarkerSize = 4;
             marks.LegendText = "μ = " + G(r.Param, 6);
 

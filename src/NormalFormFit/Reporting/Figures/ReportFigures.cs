@@ -87,21 +87,9 @@ public static partial class ReportFigures
         for (var i = 0; i < runs.Count; i++)
         {
             var r = runs[i];
-            var f = r.Field!;
             var colour = FigurePalette.Run(i, runs.Count);
-            var pts = Enumerable.Range(0, f.Centres.Length)
-                .Where(j => double.IsFinite(f.Velocity[j]))
-                .Select(j => (X: centre + RevolutionBlocks.WrapSigned(f.Centres[j] - centre), V: f.Velocity[j], S: f.StandardError[j]))
-                .OrderBy(p => p.X)
-                .ToArray();
-            var xs = pts.Select(p => p.X).ToArray();
-            var band = 1.96; // pointwise 95%: the bootstrap errors are close to normal with many revolutions.
-            var lo = pts.Select(p => p.V - (band * Finite(p.S))).ToArray();
-            var hi = pts.Select(p => p.V + (band * Finite(p.S))).ToArray();
-            var fill = plot.Add.FillY(xs, lo, hi);
-            fill.FillColor = colour.WithAlpha(0.22);
-            fill.LineWidth = 0;
-            var line = plot.Add.ScatterLine(xs, pts.Select(p => p.V).ToArray(), colour);
+            var (xs, values) = FieldWithBand(plot, r.Field!, centre, colour);
+            var line = plot.Add.ScatterLine(xs, values, colour);
             line.LineWidth = 1.6f;
             line.LegendText = "μ = " + G(r.Param, 6);
         }
@@ -128,6 +116,25 @@ public static partial class ReportFigures
             "Each run's reconstructed phase velocity (line) with its pointwise 95% band from the block bootstrap over whole " +
             "revolutions (shaded), coloured from dark (lowest μ) to light (highest μ). Black dashes: the fitted normal form " +
             "a + b(θ−θ*)² over the window used for the fit. The phase axis is centred on the bottleneck.", plot);
+    }
+
+    /// <summary>
+    /// Draws a run's pointwise 95% band of θ̇(θ) (shaded) on a phase axis centred on <paramref name="centre"/>, and
+    /// returns the bin phases in order with the field's values there, for the caller to draw as it likes.
+    /// </summary>
+    private static (double[] Phases, double[] Values) FieldWithBand(Plot plot, PhaseField field, double centre, Color colour)
+    {
+        var pts = Enumerable.Range(0, field.Centres.Length)
+            .Where(j => double.IsFinite(field.Velocity[j]))
+            .Select(j => (X: centre + RevolutionBlocks.WrapSigned(field.Centres[j] - centre), V: field.Velocity[j], S: field.StandardError[j]))
+            .OrderBy(p => p.X)
+            .ToArray();
+        var xs = pts.Select(p => p.X).ToArray();
+        var band = 1.96; // pointwise 95%: the bootstrap errors are close to normal with many revolutions.
+        var fill = plot.Add.FillY(xs, [.. pts.Select(p => p.V - (band * Finite(p.S)))], [.. pts.Select(p => p.V + (band * Finite(p.S)))]);
+        fill.FillColor = colour.WithAlpha(0.22);
+        fill.LineWidth = 0;
+        return (xs, [.. pts.Select(p => p.V)]);
     }
 
     /// <summary>Figures 2 and 3: a (or T⁻²) against μ, the fitted trend with its 95% band, both onset estimates.</summary>
