@@ -1,5 +1,6 @@
 using System.CommandLine;
 using NormalFormFit.Analysis;
+using NormalFormFit.Reporting;
 
 namespace NormalFormFit.Cli;
 

@@ -95,7 +95,7 @@ internal static class ReportFolder
                     ComparisonJson.Write(model, json, NffitApp.Version);
                 }
 
-                text += Environment.NewLine + "Reduced model" + Environment.NewLine + CompareCommand.Format(model);
+                text += Environment.NewLine + "Reduced model" + Environment.NewLine + ComparisonText.Format(model);
             }
 
             File.WriteAllText(Path.Combine(tmp, "report.txt"), text, Utf8);

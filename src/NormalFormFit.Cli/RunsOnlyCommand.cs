@@ -1,4 +1,5 @@
 using NormalFormFit.Analysis;
+using NormalFormFit.Reporting;
 
 namespace NormalFormFit.Cli;
 

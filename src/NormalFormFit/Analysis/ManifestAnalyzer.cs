@@ -98,7 +98,7 @@ public static class ManifestAnalyzer
 
     /// <summary>
     /// Combines analysed runs into the report (exit-code-3 diagnostic when too few runs turn). The same for runs
-    /// analysed here or read back from run lines written elsewhere (<see cref="RunLines"/>).
+    /// analysed here or read back from run lines written elsewhere (the run lines that the reporting library writes and reads).
     /// </summary>
     /// <param name="set">The runs, in manifest order.</param>
     /// <param name="source">Named in the message when the runs cannot answer.</param>

@@ -5,7 +5,7 @@ namespace NormalFormFit.Field;
 /// phase passes <c>cut + 2πk</c>. Whole revolutions are the blocks of the block bootstrap: samples along
 /// one trajectory are correlated, revolutions much less so (common practice, no source).
 /// </summary>
-internal static class RevolutionBlocks
+public static class RevolutionBlocks
 {
     /// <summary>Returns block labels 0…count−1 for <paramref name="phase"/> (unwrapped, increasing on average).</summary>
     public static int[] Label(ReadOnlySpan<double> phase, double cut, out int count)

@@ -52,9 +52,9 @@ public sealed class RunsOnlyAndCombineTests : IDisposable
         // Round trip of every number, NaN included (runs far from onset or without a bottleneck carry NaN).
         var first = Path.Combine(dir, "a.jsonl");
         Assert.Equal(0, Run("analyze", Path.Combine(dir, "manifest.csv"), "--runs-only", first, "--quiet").Code);
-        var set = NormalFormFit.Analysis.RunLines.Read([first]).Value!;
+        var set = NormalFormFit.Reporting.RunLines.Read([first]).Value!;
         using var again = new MemoryStream();
-        NormalFormFit.Analysis.RunLines.Write(set, again);
+        NormalFormFit.Reporting.RunLines.Write(set, again);
 
         Assert.Equal(File.ReadAllBytes(first), again.ToArray());
     }

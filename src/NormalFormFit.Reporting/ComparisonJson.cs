@@ -1,6 +1,7 @@
 using System.Text.Json;
+using NormalFormFit.Compare;
 
-namespace NormalFormFit.Compare;
+namespace NormalFormFit.Reporting;
 
 /// <summary>
 /// Writes a <see cref="ModelComparison"/> as the <c>model</c> object of the JSON report. Keys are a contract:
@@ -82,7 +83,7 @@ public static class ComparisonJson
         w.WriteStartArray("diagnostics");
         foreach (var d in c.Diagnostics)
         {
-            Reporting.JsonReport.WriteDiagnostic(w, d);
+            JsonReport.WriteDiagnostic(w, d);
         }
 
         w.WriteEndArray();
@@ -94,7 +95,7 @@ public static class ComparisonJson
     {
         using var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
         w.WriteStartObject();
-        w.WriteString("schema", Reporting.JsonReport.SchemaVersion);
+        w.WriteString("schema", JsonReport.SchemaVersion);
         if (toolVersion is not null)
         {
             w.WriteString("tool_version", toolVersion);
@@ -127,5 +128,5 @@ public static class ComparisonJson
         w.WriteEndObject();
     }
 
-    private static void Number(Utf8JsonWriter w, string name, double value) => Reporting.JsonReport.Number(w, name, value);
+    private static void Number(Utf8JsonWriter w, string name, double value) => JsonReport.Number(w, name, value);
 }

@@ -1,11 +1,12 @@
 using System.Text;
 using System.Text.Json;
+using NormalFormFit.Analysis;
 using NormalFormFit.Bottleneck;
 using NormalFormFit.Field;
 using NormalFormFit.Ingest;
 using NormalFormFit.Smoothing;
 
-namespace NormalFormFit.Analysis;
+namespace NormalFormFit.Reporting;
 
 /// <summary>
 /// Run results as JSON Lines (https://jsonlines.org: one UTF-8 JSON object per line): everything
@@ -191,7 +192,7 @@ public static class RunLines
         w.WriteStartArray("diagnostics");
         foreach (var d in r.Diagnostics)
         {
-            Reporting.JsonReport.WriteDiagnostic(w, d);
+            JsonReport.WriteDiagnostic(w, d);
         }
 
         w.WriteEndArray();
