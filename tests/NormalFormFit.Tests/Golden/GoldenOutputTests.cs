@@ -1,7 +1,10 @@
 using System.Security.Cryptography;
+using System.Text;
+using NormalFormFit.Reporting;
 using NormalFormFit.Simulation;
 using NormalFormFit.Tests.Cli;
 using NormalFormFit.Tests.Ingest;
+using NormalFormFit.Tests.Reporting;
 
 namespace NormalFormFit.Tests.Golden;
 
@@ -23,19 +26,41 @@ public class GoldenOutputTests
         Check("demo-analyze.json", Cli("analyze", manifest, "--json", "-"));
         Check("demo-summary.txt", Cli("analyze", manifest));
 
+        // Run lines of the current layout (nffit-run/2); demo-runs.jsonl keeps the earlier layout's sample.
         using var dir = CliTestHost.NewFolder();
         var lines = dir.File("demo-runs.jsonl");
         Cli("analyze", manifest, "--runs-only", lines);
-        Check("demo-runs.jsonl", File.ReadAllText(lines));
+        Check("demo-runs-v2.jsonl", File.ReadAllText(lines));
+        Check("demo-analyze.json", Cli("combine", lines, "--json", "-"));
     }
 
     [Fact]
     public void RunLinesWrittenByEarlierVersion_CombineToTheDemoReport()
     {
-        // demo-runs.jsonl was written by `analyze --runs-only` of the version that made the golden files: a
-        // later version must still read it and give the same report.
+        // demo-runs.jsonl was written by `analyze --runs-only` of the version that made the golden files (layout
+        // nffit-run/1): a later version must still read it and give the same report.
         var combined = Cli("combine", Path.Combine(ExpectedFolder, "demo-runs.jsonl"), "--json", "-");
         Check("demo-analyze.json", combined);
+    }
+
+    [Fact]
+    public void RunLinesWrittenByEarlierVersion_OfEveryKindOfRun_ReadBackAsTheRunsAnalysedNow()
+    {
+        // mixed-runs-v1.jsonl and mixed-analyze.json were written by `analyze --runs-only` and `analyze --json` of the
+        // version that made the golden files (layout nffit-run/1), on MixedRunScenario: positions (orbit), resting runs
+        // (relaxation), spike times, noise estimates, and NaN written as a string. Read back and written again in the
+        // current layout they must equal, byte for byte, the lines the current version writes for the same recordings.
+        using var files = new RecordingFiles();
+        var manifest = MixedRunScenario.Write(files);
+        Check("mixed-analyze.json", Cli("analyze", manifest, "--json", "-"));
+        var earlier = Path.Combine(ExpectedFolder, "mixed-runs-v1.jsonl");
+        Check("mixed-analyze.json", Cli("combine", earlier, "--json", "-"));
+
+        var now = Path.Combine(files.Folder, "now.jsonl");
+        Cli("analyze", manifest, "--runs-only", now);
+        using var rewritten = new MemoryStream();
+        RunLines.Write(RunLines.Read([earlier]).Value!, rewritten);
+        Assert.Equal(File.ReadAllText(now), Encoding.UTF8.GetString(rewritten.ToArray()));
     }
 
     [Fact]
