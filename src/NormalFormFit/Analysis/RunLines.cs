@@ -177,14 +177,14 @@ public static class RunLines
         }
 
         // Later stages' per-run results, as their records (NaN allowed): combine needs them all.
-        w.WriteString("input_kind", r.InputKind);
+        w.WriteString("input_kind", Reporting.WireNames.Of(r.InputKind));
         Extra(w, "orbit", r.Orbit);
         Extra(w, "relaxation", r.Relaxation);
         Extra(w, "noise", r.Noise);
         w.WriteStartArray("flags");
         foreach (var flag in r.Flags)
         {
-            w.WriteStringValue(flag);
+            w.WriteStringValue(Reporting.WireNames.Of(flag));
         }
 
         w.WriteEndArray();
@@ -235,7 +235,7 @@ public static class RunLines
             period = new PeriodSummary(Est(p, "measured"), Est(p, "from_bottleneck"), Est(p, "from_field"), p.GetProperty("revolutions").GetInt32());
         }
 
-        var flags = e.GetProperty("flags").EnumerateArray().Select(x => x.GetString() ?? string.Empty).ToList();
+        var flags = e.GetProperty("flags").EnumerateArray().Select(x => Reporting.WireNames.TryParse(x.GetString(), out RunFlag f) ? f : throw new FormatException($"unknown flag '{x.GetString()}'")).ToList();
         var diags = e.GetProperty("diagnostics").EnumerateArray().Select(ReadDiagnostic).ToList();
         return new RunResult(
             e.GetProperty("file").GetString() ?? string.Empty,
@@ -252,7 +252,8 @@ public static class RunLines
             flags,
             diags)
         {
-            InputKind = OptionalString(e, "input_kind") ?? "phase",
+            InputKind = OptionalString(e, "input_kind") is not { } kind ? RecordingKind.Phase
+                : Reporting.WireNames.TryParse(kind, out RecordingKind k) ? k : throw new FormatException($"unknown input kind '{kind}'"),
             Orbit = ReadExtra<NormalFormFit.Ingest.OrbitSummary>(e, "orbit"),
             Relaxation = ReadExtra<RelaxationFit>(e, "relaxation"),
             Noise = ReadExtra<NoiseEstimate>(e, "noise"),

@@ -32,8 +32,8 @@ public static class JsonReport
         }
 
         w.WriteStartObject("onset");
-        WriteOnset(w, "from_bottleneck", report.FromBottleneck);
-        WriteOnset(w, "from_period", report.FromPeriod);
+        WriteOnset(w, "from_bottleneck", report.FromBottleneck, report.Verdict);
+        WriteOnset(w, "from_period", report.FromPeriod, report.Verdict);
         w.WriteStartObject("agreement");
         Number(w, "z", report.Agreement.Z);
         w.WriteBoolean("consistent", report.Agreement.Consistent);
@@ -51,21 +51,21 @@ public static class JsonReport
         Number(w, "exponent_se", s?.Exponent.StandardError ?? double.NaN);
         Number(w, "ci95_low", s?.Ci95.Low ?? double.NaN);
         Number(w, "ci95_high", s?.Ci95.High ?? double.NaN);
-        w.WriteString("verdict", s?.Verdict ?? "undetermined");
-        w.WriteString("evidence", s?.Evidence ?? "fewer than four runs with timed periods");
+        w.WriteString("verdict", WireNames.Of(report.Verdict.Kind));
+        w.WriteString("evidence", report.Verdict.Evidence);
         Number(w, "onset", s?.Onset.Value ?? double.NaN);
         Number(w, "runs", s?.Runs ?? 0);
-        w.WriteString("form", s?.Form ?? Scaling.ScalingForms.PowerLaw);
+        w.WriteString("form", WireNames.Of(s?.Form ?? Scaling.ScalingForm.PowerLaw));
         Number(w, "offset", s?.Offset?.Value ?? double.NaN);
         Number(w, "offset_se", s?.Offset?.StandardError ?? double.NaN);
-        ScalingEvidence(w, s);
+        ScalingEvidence(w, report.Verdict);
         w.WriteEndObject();
         NextMeasurements(w, report);
 
         w.WriteStartArray("runs");
         foreach (var r in report.Runs)
         {
-            WriteRun(w, r);
+            WriteRun(w, r, report.FlagsOf(r));
         }
 
         w.WriteEndArray();
@@ -106,7 +106,7 @@ public static class JsonReport
         w.WriteEndObject();
     }
 
-    private static void WriteOnset(Utf8JsonWriter w, string name, OnsetEstimate e)
+    private static void WriteOnset(Utf8JsonWriter w, string name, OnsetEstimate e, Scaling.OnsetVerdict verdict)
     {
         w.WriteStartObject(name);
         Number(w, "value", e.Value);
@@ -118,11 +118,11 @@ public static class JsonReport
         if (e.Curve is { } curve)
         {
             // Additive key: "polynomial" (trend_degree tells which) or "square-root-with-offset" (trend_degree null).
-            w.WriteString("law", curve.Law);
+            w.WriteString("law", WireNames.Of(curve.Law));
             w.WriteString("law_description", curve.Description);
         }
-        w.WriteString("status", e.Status);
-        if (e.StatusReason is { } why)
+        w.WriteString("status", WireNames.Of(verdict.RouteStatus));
+        if (verdict.RouteStatusReason is { } why)
         {
             w.WriteString("status_reason", why);
         }
@@ -131,7 +131,7 @@ public static class JsonReport
         w.WriteEndObject();
     }
 
-    private static void WriteRun(Utf8JsonWriter w, RunResult r)
+    private static void WriteRun(Utf8JsonWriter w, RunResult r, IReadOnlyList<RunFlag> flags)
     {
         w.WriteStartObject();
         w.WriteString("file", r.File);
@@ -190,7 +190,7 @@ public static class JsonReport
 
         RunEvidence(w, r);
 
-        w.WriteString("input_kind", r.InputKind);
+        w.WriteString("input_kind", WireNames.Of(r.InputKind));
         if (r.Orbit is { } o)
         {
             w.WriteStartObject("orbit");
@@ -207,9 +207,9 @@ public static class JsonReport
         }
 
         w.WriteStartArray("flags");
-        foreach (var f in r.Flags)
+        foreach (var f in flags)
         {
-            w.WriteStringValue(f);
+            w.WriteStringValue(WireNames.Of(f));
         }
 
         w.WriteEndArray();
@@ -217,9 +217,9 @@ public static class JsonReport
     }
 
     // scaling.weights {saddle_node, homoclinic, finite_period}, scaling.laws[], scaling.minimum_speed.
-    private static void ScalingEvidence(Utf8JsonWriter w, Scaling.ScalingResult? s)
+    private static void ScalingEvidence(Utf8JsonWriter w, Scaling.OnsetVerdict s)
     {
-        if (s?.Weights is { } wt)
+        if (s.Weights is { } wt)
         {
             w.WriteStartObject("weights");
             Number(w, "saddle_node", wt.SaddleNode);
@@ -230,7 +230,7 @@ public static class JsonReport
             foreach (var f in wt.Fits)
             {
                 w.WriteStartObject();
-                w.WriteString("law", f.Law);
+                w.WriteString("law", WireNames.Of(f.Law));
                 Number(w, "onset", f.Onset);
                 Number(w, "aic", f.Aic);
                 w.WriteBoolean("onset_at_search_limit", f.AtBoundary);
@@ -244,7 +244,7 @@ public static class JsonReport
             w.WriteNull("weights");
         }
 
-        if (s?.MinimumSpeed is { } m)
+        if (s.MinimumSpeed is { } m)
         {
             w.WriteStartObject("minimum_speed");
             w.WriteBoolean("reaches_zero", m.ReachesZero);
@@ -263,7 +263,7 @@ public static class JsonReport
         foreach (var m in report.NextMeasurements)
         {
             w.WriteStartObject();
-            w.WriteString("route", m.Route);
+            w.WriteString("route", WireNames.Of(m.Route));
             Number(w, "param", m.Param);
             w.WriteNumber("runs", m.Runs);
             Number(w, "expected_period", m.ExpectedPeriod);
