@@ -51,10 +51,10 @@ internal static class AnalyzeCommand
                     DecimalComma = pr.GetValue(decimalComma),
                     Kind = pr.GetValue(kind) switch
                     {
-                        "phase" => RecordingKind.Phase,
-                        "positions" => RecordingKind.Positions,
-                        "events" => RecordingKind.Events,
-                        _ => RecordingKind.Auto,
+                        "phase" => RecordingKindOption.Phase,
+                        "positions" => RecordingKindOption.Positions,
+                        "events" => RecordingKindOption.Events,
+                        _ => RecordingKindOption.Auto,
                     },
                     XColumn = pr.GetValue(xCol)!,
                     YColumn = pr.GetValue(yCol)!,

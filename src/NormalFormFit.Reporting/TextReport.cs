@@ -32,8 +32,8 @@ public static class TextReport
         if (report.Scaling is { } s)
         {
             sb.AppendLine(string.Create(Inv, $"  scaling T ∝ (μ−μc)^−β:     β = {s.Exponent.Value:F3}  [{s.Ci95.Low:F3}, {s.Ci95.High:F3}]"));
-            sb.AppendLine($"  kind of onset:             {s.Verdict}");
-            sb.AppendLine($"                             {s.Evidence}");
+            sb.AppendLine($"  kind of onset:             {WireNames.Of(report.Verdict.Kind)}");
+            sb.AppendLine($"                             {report.Verdict.Evidence}");
         }
         else
         {
@@ -63,7 +63,7 @@ public static class TextReport
                 (p?.Revolutions ?? 0).ToString(Inv),
                 r.Relaxation is { } x ? G(x.Rate.Value, 4) : "–",
                 r.Noise is { } nz ? Diffusion(nz.Diffusion) : "–",
-                r.Flags.Count == 0 ? "ok" : string.Join(",", r.Flags),
+                report.FlagsOf(r) is { Count: > 0 } flags ? string.Join(",", flags.Select(WireNames.Of)) : "ok",
             ]);
         }
 
@@ -112,15 +112,15 @@ public static class TextReport
 
     private static void RouteCaveats(StringBuilder sb, AnalysisReport report)
     {
-        var a = report.FromBottleneck;
+        var a = report.Verdict;
         var t = report.FromPeriod;
-        if (a.Status != RouteStatus.Applicable && a.Status != RouteStatus.Unconfirmed)
+        if (a.RouteStatus != RouteStatus.Applicable && a.RouteStatus != RouteStatus.Unconfirmed)
         {
-            sb.AppendLine($"  route status:              {a.Status}: {a.StatusReason}");
+            sb.AppendLine($"  route status:              {WireNames.Of(a.RouteStatus)}: {a.RouteStatusReason}");
         }
-        else if (a.Status == RouteStatus.Unconfirmed)
+        else if (a.RouteStatus == RouteStatus.Unconfirmed)
         {
-            sb.AppendLine($"  route status:              unconfirmed: {a.StatusReason}");
+            sb.AppendLine($"  route status:              unconfirmed: {a.RouteStatusReason}");
         }
 
         if (t.RunsBelowOnset > 0)
@@ -145,7 +145,7 @@ public static class TextReport
             var now = ReportNumbers.Interval(m.CurrentCi95, m.CurrentCi95.Width / 3.92);
             var then = ReportNumbers.Interval(m.ExpectedCi95, m.ExpectedCi95.Width / 3.92);
             sb.AppendLine(string.Create(Inv,
-                $"  {m.Route} route: {m.Runs} run(s) at μ = {m.Param:G6}{units}{period}: interval {now} expected to become {then}"));
+                $"  {WireNames.Of(m.Route)} route: {m.Runs} run(s) at μ = {m.Param:G6}{units}{period}: interval {now} expected to become {then}"));
         }
     }
 

@@ -1,12 +1,13 @@
 using System.Text.RegularExpressions;
 using NormalFormFit.Analysis;
 using NormalFormFit.Compare;
+using NormalFormFit.Reporting;
 
 namespace NormalFormFit.Tests;
 
 /// <summary>
 /// docs/diagnostics.md lists every code a user can meet. The codes are collected from the source itself (every
-/// <c>Diagnostic</c> created with a literal code, every run flag, the failure codes), so a new code without an entry
+/// <c>Diagnostic</c> created with a literal code, every run flag by its name, the failure codes), so a new code without an entry
 /// fails here.
 /// </summary>
 public partial class DiagnosticCatalogueTests
@@ -26,7 +27,12 @@ public partial class DiagnosticCatalogueTests
             }
         }
 
-        foreach (var type in new[] { typeof(RunFlags), typeof(InsufficientData), typeof(CompareFailures) })
+        foreach (var flag in Enum.GetValues<RunFlag>())
+        {
+            codes.Add(WireNames.Of(flag));
+        }
+
+        foreach (var type in new[] { typeof(InsufficientData), typeof(CompareFailures) })
         {
             foreach (var field in type.GetFields().Where(f => f.IsLiteral && f.FieldType == typeof(string)))
             {

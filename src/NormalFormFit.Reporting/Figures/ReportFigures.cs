@@ -262,7 +262,7 @@ public static partial class ReportFigures
         {
             var fit = plot.Add.ScatterLine(gx, gx.Select(x => Math.Log10(s.PeriodAt(s.Onset.Value + Math.Pow(10, x)))).ToArray(), FigurePalette.Period);
             fit.LineWidth = 2;
-            fit.LegendText = string.Create(Inv, $"fitted law, β = {s.Exponent.Value:F3}{(s.Form == NormalFormFit.Scaling.ScalingForms.PowerLawWithOffset ? " (with offset T₀)" : s.LogModel.Count > 2 ? " (with correction terms)" : string.Empty)}");
+            fit.LegendText = string.Create(Inv, $"fitted law, β = {s.Exponent.Value:F3}{(s.Form == NormalFormFit.Scaling.ScalingForm.PowerLawWithOffset ? " (with offset T₀)" : s.LogModel.Count > 2 ? " (with correction terms)" : string.Empty)}");
         }
 
         var bars = plot.Add.ErrorBar(lx, ly, ls);
@@ -277,7 +277,7 @@ public static partial class ReportFigures
         return new Figure("scaling", "Scaling law of the period",
             string.Create(Inv, $"Measured periods against the distance to the onset μc = {G(s.Onset.Value, 6)} of this fit, on logarithmic axes. ") +
             "Amber: the fitted law (with its correction terms when the information criterion kept them). Grey dots: the reference " +
-            "slope −½ of a saddle-node on the circle, placed at its best height. " + s.Evidence + ".", plot);
+            "slope −½ of a saddle-node on the circle, placed at its best height. " + report.Verdict.Evidence + ".", plot);
     }
 
     /// <summary>Figure 5: measured period and the two predictions, per run.</summary>

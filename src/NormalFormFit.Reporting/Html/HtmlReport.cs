@@ -123,11 +123,11 @@ public static partial class HtmlReport
             sb.Append(string.Create(Inv, $"<p class=\"verdict bad\"><strong>The two routes disagree</strong>: z = {ag.Z:F2} (|z| &gt; 2). Most likely: {E(ag.Reason ?? "unknown")}.</p>\n"));
         }
 
-        if (report.Scaling is { } s)
+        if (report.Scaling is not null)
         {
-            var kind = s.Verdict == "saddle-node-on-circle" ? "good" : "unknown";
-            sb.Append("<p class=\"verdict ").Append(kind).Append("\"><strong>Kind of onset: ").Append(E(s.Verdict)).Append("</strong>. ")
-              .Append(E(Capitalise(s.Evidence))).Append(".</p>\n");
+            var kind = report.Verdict.Kind == Scaling.OnsetKind.SaddleNodeOnCircle ? "good" : "unknown";
+            sb.Append("<p class=\"verdict ").Append(kind).Append("\"><strong>Kind of onset: ").Append(E(WireNames.Of(report.Verdict.Kind))).Append("</strong>. ")
+              .Append(E(Capitalise(report.Verdict.Evidence))).Append(".</p>\n");
         }
         else
         {
@@ -268,7 +268,7 @@ public static partial class HtmlReport
               .Append("<td class=\"num\">").Append(p is null ? "–" : G(p.FromBottleneck.Value, 5)).Append("</td>")
               .Append("<td class=\"num\">").Append(p is null ? "–" : G(p.FromField.Value, 5)).Append("</td>")
               .Append("<td class=\"num\">").Append((p?.Revolutions ?? 0).ToString(Inv)).Append("</td>")
-              .Append("<td>").Append(r.Flags.Count == 0 ? "ok" : E(string.Join(", ", r.Flags))).Append("</td></tr>\n");
+              .Append("<td>").Append(report.FlagsOf(r) is { Count: > 0 } flags ? E(string.Join(", ", flags.Select(WireNames.Of))) : "ok").Append("</td></tr>\n");
         }
 
         sb.Append("</tbody></table></div>\n<p class=\"note\">Values ± one standard error. The same numbers, unrounded, are in runs.csv; ")

@@ -39,7 +39,7 @@ public static class ReportTables
                 r.File, N(r.Param), r.Label ?? string.Empty, r.Samples.ToString(Inv), N(r.Turns),
                 N(b?.Phase.Value), N(b?.Phase.StandardError), N(b?.A.Value), N(b?.A.StandardError), N(b?.B.Value), N(b?.B.StandardError),
                 N(b?.HalfWidth), N(p?.Measured.Value), N(p?.Measured.StandardError), N(p?.FromBottleneck.Value), N(p?.FromField.Value),
-                N(p?.FromField.StandardError), (p?.Revolutions ?? 0).ToString(Inv), N(r.Smoothing?.NoiseSd), string.Join(";", r.Flags),
+                N(p?.FromField.StandardError), (p?.Revolutions ?? 0).ToString(Inv), N(r.Smoothing?.NoiseSd), string.Join(";", report.FlagsOf(r).Select(WireNames.Of)),
             ]);
         }
 

@@ -39,13 +39,13 @@ internal sealed record ReportDto
         ParamUnits = report.ParamUnits,
         Onset = new OnsetSectionDto
         {
-            FromBottleneck = RouteDto.From(report.FromBottleneck),
-            FromPeriod = RouteDto.From(report.FromPeriod),
+            FromBottleneck = RouteDto.From(report.FromBottleneck, report.Verdict),
+            FromPeriod = RouteDto.From(report.FromPeriod, report.Verdict),
             Agreement = new AgreementDto { Z = report.Agreement.Z, Consistent = report.Agreement.Consistent, Reason = report.Agreement.Reason },
         },
-        Scaling = ScalingDto.From(report.Scaling),
+        Scaling = ScalingDto.From(report.Scaling, report.Verdict),
         NextMeasurements = [.. report.NextMeasurements.Select(NextMeasurementDto.From)],
-        Runs = [.. report.Runs.Select(RunDto.From)],
+        Runs = [.. report.Runs.Select(r => RunDto.From(r, report.FlagsOf(r)))],
         Diagnostics = [.. report.AllDiagnostics.Select(DiagnosticDto.From)],
     };
 }
@@ -89,7 +89,7 @@ internal sealed record RouteDto
 
     public int RunsBelowOnset { get; init; }
 
-    public static RouteDto From(OnsetEstimate e) => new()
+    public static RouteDto From(OnsetEstimate e, OnsetVerdict verdict) => new()
     {
         Value = e.Value,
         Se = e.StandardError,
@@ -97,10 +97,10 @@ internal sealed record RouteDto
         Ci95High = e.Ci95.High,
         Runs = e.Runs,
         TrendDegree = e.Trend?.Degree ?? double.NaN,
-        Law = e.Curve?.Law,
+        Law = e.Curve is { } curve ? WireNames.Of(curve.Law) : null,
         LawDescription = e.Curve?.Description,
-        Status = e.Status,
-        StatusReason = e.StatusReason,
+        Status = WireNames.Of(verdict.RouteStatus),
+        StatusReason = verdict.RouteStatusReason,
         RunsBelowOnset = e.RunsBelowOnset,
     };
 }
@@ -151,24 +151,24 @@ internal sealed record ScalingDto
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public MinimumSpeedDto? MinimumSpeed { get; init; }
 
-    public static ScalingDto From(ScalingResult? s) => new()
+    public static ScalingDto From(ScalingResult? s, OnsetVerdict verdict) => new()
     {
         Exponent = s?.Exponent.Value ?? double.NaN,
         ExponentSe = s?.Exponent.StandardError ?? double.NaN,
         Ci95Low = s?.Ci95.Low ?? double.NaN,
         Ci95High = s?.Ci95.High ?? double.NaN,
-        Verdict = s?.Verdict ?? "undetermined",
-        Evidence = s?.Evidence ?? "fewer than four runs with timed periods",
+        Verdict = WireNames.Of(verdict.Kind),
+        Evidence = verdict.Evidence,
         Onset = s?.Onset.Value ?? double.NaN,
         Runs = s?.Runs ?? 0,
-        Form = s?.Form ?? ScalingForms.PowerLaw,
+        Form = WireNames.Of(s?.Form ?? ScalingForm.PowerLaw),
         Offset = s?.Offset?.Value ?? double.NaN,
         OffsetSe = s?.Offset?.StandardError ?? double.NaN,
-        Weights = s?.Weights is { } w ? new WeightsDto { SaddleNode = w.SaddleNode, Homoclinic = w.Homoclinic, FinitePeriod = w.FinitePeriod } : null,
-        Laws = s?.Weights is { } lw
-            ? [.. lw.Fits.Select(f => new LawDto { Law = f.Law, Onset = f.Onset, Aic = f.Aic, OnsetAtSearchLimit = f.AtBoundary })]
+        Weights = verdict.Weights is { } w ? new WeightsDto { SaddleNode = w.SaddleNode, Homoclinic = w.Homoclinic, FinitePeriod = w.FinitePeriod } : null,
+        Laws = verdict.Weights is { } lw
+            ? [.. lw.Fits.Select(f => new LawDto { Law = WireNames.Of(f.Law), Onset = f.Onset, Aic = f.Aic, OnsetAtSearchLimit = f.AtBoundary })]
             : null,
-        MinimumSpeed = s?.MinimumSpeed is { } m
+        MinimumSpeed = verdict.MinimumSpeed is { } m
             ? new MinimumSpeedDto
             {
                 ReachesZero = m.ReachesZero,
@@ -241,7 +241,7 @@ internal sealed record NextMeasurementDto
 
     public static NextMeasurementDto From(NextMeasurement m) => new()
     {
-        Route = m.Route,
+        Route = WireNames.Of(m.Route),
         Param = m.Param,
         Runs = m.Runs,
         ExpectedPeriod = m.ExpectedPeriod,
@@ -289,7 +289,7 @@ internal sealed record RunDto
 
     public required IReadOnlyList<string> Flags { get; init; }
 
-    public static RunDto From(RunResult r) => new()
+    public static RunDto From(RunResult r, IReadOnlyList<RunFlag> flags) => new()
     {
         File = r.File,
         Param = r.Param,
@@ -321,7 +321,7 @@ internal sealed record RunDto
         Smoothing = SmoothingDto.From(r.Smoothing),
         Relaxation = RelaxationDto.From(r.Relaxation),
         Noise = NoiseDto.From(r.Noise),
-        InputKind = r.InputKind,
+        InputKind = WireNames.Of(r.InputKind),
         Orbit = r.Orbit is { } o
             ? new OrbitDto
             {
@@ -336,7 +336,7 @@ internal sealed record RunDto
                 Sense = o.Sense,
             }
             : null,
-        Flags = r.Flags,
+        Flags = [.. flags.Select(WireNames.Of)],
     };
 }
 

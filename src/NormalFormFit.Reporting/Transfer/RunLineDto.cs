@@ -111,7 +111,7 @@ internal sealed record RunLineDto
                 Revolutions = p.Revolutions,
             }
             : null,
-        InputKind = r.InputKind,
+        InputKind = WireNames.Of(r.InputKind),
         Orbit = r.Orbit is { } o
             ? new OrbitLineDto
             {
@@ -129,7 +129,7 @@ internal sealed record RunLineDto
             : null,
         Relaxation = RelaxationDto.From(r.Relaxation),
         Noise = NoiseDto.From(r.Noise),
-        Flags = r.Flags,
+        Flags = [.. r.Flags.Select(WireNames.Of)],
         Diagnostics = [.. r.Diagnostics.Select(DiagnosticDto.From)],
     };
 
@@ -152,10 +152,10 @@ internal sealed record RunLineDto
         Period is { } p
             ? new PeriodSummary(new Estimate(p.Measured, p.MeasuredSe), new Estimate(p.FromBottleneck, p.FromBottleneckSe), new Estimate(p.FromField, p.FromFieldSe), p.Revolutions)
             : null,
-        Flags,
+        [.. Flags.Select(WireNames.ParseFlag)],
         [.. Diagnostics.Select(d => d.ToDiagnostic())])
     {
-        InputKind = InputKind,
+        InputKind = WireNames.ParseRecordingKind(InputKind),
         Orbit = Orbit is { } o
             ? new OrbitSummary(new Ellipse(o.CentreX, o.CentreY, o.SemiMajor, o.SemiMinor, o.Tilt, o.Conic), o.RmsDeviation, o.MinRadius, o.IsEllipse, o.Sense)
             : null,

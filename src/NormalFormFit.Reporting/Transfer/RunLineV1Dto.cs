@@ -71,10 +71,10 @@ internal sealed record RunLineV1Dto
             }
             : null,
         Period is { } p ? new PeriodSummary(p.Measured.ToEstimate(), p.FromBottleneck.ToEstimate(), p.FromField.ToEstimate(), p.Revolutions) : null,
-        Flags,
+        [.. Flags.Select(WireNames.ParseFlag)],
         [.. Diagnostics.Select(d => d.ToDiagnostic())])
     {
-        InputKind = InputKind ?? "phase",
+        InputKind = WireNames.ParseRecordingKind(InputKind),
         Orbit = Orbit is { } o
             ? new OrbitSummary(new Ellipse(o.Ellipse.CentreX, o.Ellipse.CentreY, o.Ellipse.SemiMajor, o.Ellipse.SemiMinor, o.Ellipse.Tilt, o.Ellipse.Conic), o.RmsDeviation, o.MinRadius, o.IsEllipse, o.Sense)
             : null,

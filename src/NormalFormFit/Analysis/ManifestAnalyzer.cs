@@ -119,7 +119,7 @@ public static class ManifestAnalyzer
             ]);
         }
 
-        var report = OnsetAnalysis.Combine(runs) with { ParamUnits = set.ParamUnits };
+        var report = OnsetAnalysis.Combine(runs, set.ParamUnits);
         return new Loaded<AnalysisReport>(report, diagnostics);
     }
 }

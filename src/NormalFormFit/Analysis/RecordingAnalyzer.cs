@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using System.Globalization;
 using NormalFormFit.Ingest;
 
@@ -7,7 +8,7 @@ namespace NormalFormFit.Analysis;
 /// Any recording to a <see cref="RunResult"/>: phase through <see cref="RunAnalyzer"/>; positions through the ellipse
 /// phase (<see cref="OrbitPhase"/>) and then <see cref="RunAnalyzer"/>; event times through
 /// <see cref="EventRunAnalyzer"/> (periods only). Pure. Reader diagnostics are passed in so that they land in the
-/// run's diagnostics and flags.
+/// run's diagnostics and flags (<see cref="RunSource"/>).
 /// </summary>
 public static class RecordingAnalyzer
 {
@@ -17,41 +18,29 @@ public static class RecordingAnalyzer
         ArgumentNullException.ThrowIfNull(recording);
         ArgumentNullException.ThrowIfNull(readDiagnostics);
         var pre = readDiagnostics.Select(d => d with { File = file }).ToList();
-        RunResult run;
-        switch (recording.Kind)
+        switch (recording)
         {
-            case RecordingKind.Events:
-                run = EventRunAnalyzer.Analyze(recording.Events!, param, file, label);
-                break;
-            case RecordingKind.Positions:
-                var (phase, orbit, orbitDiags) = OrbitPhase.FromPositions(recording.Positions!);
+            case EventRecording events:
+                return new Loaded<RunResult>(EventRunAnalyzer.Analyze(events, param, file, label, pre), []);
+            case PositionRecording positions:
+                var (phase, orbit, orbitDiags) = OrbitPhase.FromPositions(positions);
                 pre.AddRange(orbitDiags.Select(d => d with { File = file }));
                 if (phase is null || orbit is null)
                 {
                     return new Loaded<RunResult>(null, pre);
                 }
 
-                run = RunAnalyzer.Analyze(Trajectory.FromRecording(phase), param, file, label, options) with { InputKind = "positions", Orbit = orbit };
-                if (!orbit.IsEllipse)
-                {
-                    run = run with { Flags = [.. run.Flags, RunFlags.NotAnEllipse] };
-                }
-
                 pre.Add(new Diagnostic(Severity.Info, "orbit", string.Create(CultureInfo.InvariantCulture,
                     $"ellipse centre ({orbit.Ellipse.CentreX:G5}, {orbit.Ellipse.CentreY:G5}), semi-axes {orbit.Ellipse.SemiMajor:G4} and {orbit.Ellipse.SemiMinor:G4}, tilt {orbit.Ellipse.Tilt * 180 / Math.PI:F1}°, RMS deviation {orbit.RmsDeviation:P2}; turning {orbit.Sense}"),
                     file));
-                break;
+                var fromPositions = new RunSource(RecordingKind.Positions, orbit, pre);
+                return new Loaded<RunResult>(RunAnalyzer.Analyze(Trajectory.FromRecording(phase), param, file, label, options, fromPositions), []);
+            case PhaseRecording phaseRecording:
+                var fromPhase = new RunSource(RecordingKind.Phase, null, pre);
+                return new Loaded<RunResult>(RunAnalyzer.Analyze(Trajectory.FromRecording(phaseRecording), param, file, label, options, fromPhase), []);
             default:
-                run = RunAnalyzer.Analyze(Trajectory.FromRecording(recording.Phase!), param, file, label, options);
-                break;
+                throw new UnreachableException($"no analysis for a recording of kind {recording.Kind}");
         }
-
-        if (pre.Any(d => d.Code == "large-gaps") && !run.Flags.Contains(RunFlags.LargeGaps))
-        {
-            run = run with { Flags = [.. run.Flags, RunFlags.LargeGaps] };
-        }
-
-        return new Loaded<RunResult>(run with { Diagnostics = [.. pre, .. run.Diagnostics] }, []);
     }
 }
 
@@ -64,9 +53,15 @@ public static class RecordingAnalyzer
 public static class EventRunAnalyzer
 {
     /// <summary>Analyses one run of event times.</summary>
-    public static RunResult Analyze(EventRecording events, double param, string file, string? label = null)
+    /// <param name="events">The event times.</param>
+    /// <param name="param">Control parameter μ.</param>
+    /// <param name="file">Run file as named in the manifest.</param>
+    /// <param name="label">Optional label.</param>
+    /// <param name="readDiagnostics">Diagnostics of reading the file, naming the run file (none when null).</param>
+    public static RunResult Analyze(EventRecording events, double param, string file, string? label = null, IReadOnlyList<Diagnostic>? readDiagnostics = null)
     {
         ArgumentNullException.ThrowIfNull(events);
+        var source = new RunSource(RecordingKind.Events, null, readDiagnostics ?? []);
         var times = events.Times;
         var n = times.Length;
         var intervals = new List<double>();
@@ -80,28 +75,26 @@ public static class EventRunAnalyzer
             }
         }
 
-        var flags = new List<string> { RunFlags.PeriodsOnly };
-        var diags = new List<Diagnostic>();
+        // Event times carry periods only: that flag comes first.
+        var found = new RunFindings(source.Diagnostics);
+        found.Flags.Add(RunFlag.PeriodsOnly);
+
         var duration = n > 0 ? times[^1] - times[0] : 0;
-        if (intervals.Count == 0)
+        if (RunChecks.NoIntervals(file, n, intervals.Count) is { } none)
         {
-            flags.Add(RunFlags.NotTurning);
-            diags.Add(new Diagnostic(Severity.Info, "not-turning",
-                $"only {n} event(s) in a row: no interval can be timed; the run is left out of the onset fits", file));
-            return new RunResult(file, param, label, n, duration, 0, 1, null, null, null, null, flags, diags) { InputKind = "events" };
+            found.Raise(none);
+            return new RunResult(file, param, label, n, duration, 0, 1, null, null, null, null, [.. found.Flags, .. source.Flags], found.Diagnostics) { InputKind = RecordingKind.Events };
         }
 
         var mean = intervals.Average();
         var se = intervals.Count >= 2 ? Field.PhaseFieldEstimator.StandardDeviation(intervals) / Math.Sqrt(intervals.Count) : double.NaN;
-        if (intervals.Count < 3)
-        {
-            flags.Add(RunFlags.FewRevolutions);
-            diags.Add(new Diagnostic(Severity.Warning, "few-revolutions",
-                $"only {intervals.Count} interval(s) between events; at least three are needed for a period with an error: record longer", file));
-        }
+        found.Raise(RunChecks.FewIntervals(file, intervals.Count));
 
         var nan = new Estimate(double.NaN, double.NaN);
         var period = new PeriodSummary(new Estimate(mean, se), nan, nan, intervals.Count);
-        return new RunResult(file, param, label, n, duration, intervals.Count, 1, null, null, null, period, flags, diags) { InputKind = "events" };
+        return new RunResult(file, param, label, n, duration, intervals.Count, 1, null, null, null, period, [.. found.Flags, .. source.Flags], found.Diagnostics)
+        {
+            InputKind = RecordingKind.Events,
+        };
     }
 }

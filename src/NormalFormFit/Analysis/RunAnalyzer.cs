@@ -24,28 +24,41 @@ public sealed record RunOptions
 
 /// <summary>
 /// One run from trajectory to <see cref="RunResult"/>: smoothing spline → θ̇ → field on the circle →
-/// bottleneck normal form → periods (measured and predicted) → flags. Pure: same input, same result. O(n).
+/// bottleneck normal form → periods (measured and predicted) → the run checks (<see cref="RunChecks"/>).
+/// Pure: same input, same result. O(n).
 /// </summary>
 public static class RunAnalyzer
 {
-    private const int MinSegment = 8;
-
     /// <summary>Analyses one run.</summary>
-    public static RunResult Analyze(Trajectory trajectory, double param, string file, string? label = null, RunOptions? options = null)
+    /// <param name="trajectory">The phase trajectory.</param>
+    /// <param name="param">Control parameter μ.</param>
+    /// <param name="file">Run file as named in the manifest.</param>
+    /// <param name="label">Optional label.</param>
+    /// <param name="options">Analysis options (defaults when null).</param>
+    /// <param name="source">What the trajectory was read from (a phase recording without remarks when null).</param>
+    public static RunResult Analyze(Trajectory trajectory, double param, string file, string? label = null, RunOptions? options = null, RunSource? source = null)
     {
         ArgumentNullException.ThrowIfNull(trajectory);
         options ??= RunOptions.Default;
-        var diags = new List<Diagnostic>();
-        var flags = new List<string>();
+        source ??= RunSource.Phase;
         var n = trajectory.Count;
         var t = trajectory.Time;
         var duration = n > 0 ? t[^1] - t[0] : 0;
-        if (trajectory.LargeSteps > 0)
-        {
-            flags.Add(RunFlags.UnsafeUnwrap);
-            diags.Add(Warn(file, "unsafe-unwrap",
-                $"{trajectory.LargeSteps} step(s) between samples are near π: the phase cannot be unwrapped safely there; sample faster"));
-        }
+        var found = new RunFindings(source.Diagnostics);
+
+        // The result, built once at the end of whichever path the run takes.
+        RunResult Result(double turns, SmoothingSummary? smoothing, PhaseField? field, BottleneckFit? bottleneck, PeriodSummary? period,
+            RelaxationFit? relaxation = null, NoiseEstimate? noise = null) =>
+            new(file, param, label, n, duration, turns, trajectory.Direction, smoothing, field, bottleneck, period,
+                [.. found.Flags, .. source.Flags], found.Diagnostics)
+            {
+                InputKind = source.Kind,
+                Orbit = source.Orbit,
+                Relaxation = relaxation,
+                Noise = noise,
+            };
+
+        found.Raise(RunChecks.UnsafeUnwrap(file, trajectory.LargeSteps));
 
         // Smoothing, segment by segment.
         var smooth = new double[n];
@@ -61,7 +74,7 @@ public static class RunAnalyzer
         {
             var s = trajectory.SegmentStarts[k];
             var e = trajectory.SegmentEnd(k);
-            if (e - s < MinSegment)
+            if (e - s < RunChecks.MinimumSamples)
             {
                 continue;
             }
@@ -82,10 +95,12 @@ public static class RunAnalyzer
 
         // Compact to the smoothed samples (no copies when every segment was smoothed: long records).
         var usedCount = used.Count(u => u);
-        if (usedCount < MinSegment)
+        if (RunChecks.TooShort(file, usedCount) is { } tooShort)
         {
-            diags.Add(Warn(file, "too-short", $"only {usedCount} usable samples; a run needs at least {MinSegment} consecutive samples"));
-            return new RunResult(file, param, label, n, duration, 0, trajectory.Direction, null, null, null, null, [RunFlags.NotTurning, .. flags], diags);
+            // Not turning comes first among the flags of a run too short to analyse.
+            found.Flags.Insert(0, tooShort.Flag);
+            found.Diagnostics.Add(tooShort.Diagnostic);
+            return Result(0, null, null, null, null);
         }
 
         double[] tt = t, ph = smooth, v = speed, raw = trajectory.Phase;
@@ -101,17 +116,15 @@ public static class RunAnalyzer
         var segs = CompactSegments(trajectory, used);
         var smoothing = new SmoothingSummary(firstLambda, dof > 0 ? Math.Sqrt(ssq / dof) : double.NaN, edf, firstMethod);
         var turns = (ph[^1] - ph[0]) / (2 * Math.PI);
-        if (turns < 1)
+        if (RunChecks.NotTurning(file, turns) is { } resting)
         {
-            flags.Add(RunFlags.NotTurning);
-            diags.Add(Info(file, "not-turning", string.Create(CultureInfo.InvariantCulture,
-                $"the phase advances only {turns:F2} turns: the run does not turn (below onset?); no period is measured")));
+            found.Raise(resting);
             var relaxation = Relaxation.Fit(tt, raw, ph, smoothing.NoiseSd);
-            diags.Add(relaxation is null
+            found.Diagnostics.Add(relaxation is null
                 ? Info(file, "no-relaxation", "the run does not settle visibly inside the record (or starts at rest): no relaxation rate")
                 : Info(file, "relaxation", string.Create(CultureInfo.InvariantCulture,
                     $"the phase settles at {relaxation.RestPhase:F3} rad with relaxation rate κ = {relaxation.Rate.Value:G4} ± {relaxation.Rate.StandardError:G2}")));
-            return new RunResult(file, param, label, n, duration, turns, trajectory.Direction, smoothing, null, null, null, flags, diags) { Relaxation = relaxation };
+            return Result(turns, smoothing, null, null, null, relaxation: relaxation);
         }
 
         // Weights never depend on the noisy θ̇ itself (a weight ∝ θ̇ would bias every mean upward by var/mean):
@@ -131,97 +144,25 @@ public static class RunAnalyzer
 
         var field = PhaseFieldEstimator.Estimate(ph, v, phaseWeight, labels, blocks, options.Field with { Bins = prelim.Centres.Length });
         var bottleneck = BottleneckLocator.Locate(ph, v, dtWeight, labels, blocks, field, options.Bottleneck);
-        if (bottleneck is null)
-        {
-            flags.Add(RunFlags.NoBottleneck);
-            diags.Add(Warn(file, "no-bottleneck", "no parabola opening upward fits the slowest part of θ̇(θ): the run shows no bottleneck"));
-        }
+        found.Raise(RunChecks.NoBottleneck(file, bottleneck));
 
         var reference = RevolutionBlocks.Wrap((bottleneck?.Phase.Value ?? slow) + Math.PI);
         var periods = PeriodMeasurement.Measure(tt, ph, segs, double.IsFinite(reference) ? reference : 0.0);
         var fromBottleneck = bottleneck?.PassageTime ?? new Estimate(double.NaN, double.NaN);
         var summary = new PeriodSummary(periods.Mean, fromBottleneck, field.Period, periods.Revolutions);
-
-        if (periods.Revolutions < 3)
-        {
-            flags.Add(RunFlags.FewRevolutions);
-            diags.Add(Warn(file, "few-revolutions",
-                $"only {periods.Revolutions} whole revolution(s) timed; at least three are needed for a period with an error: record longer"));
-        }
-
-        var measured = periods.Mean.Value;
-        if (double.IsFinite(measured) && double.IsFinite(fromBottleneck.Value))
-        {
-            var ratio = measured / fromBottleneck.Value;
-            if (Math.Abs(ratio - 1) > 0.25)
-            {
-                flags.Add(RunFlags.FarFromOnset);
-                diags.Add(Info(file, "far-from-onset", string.Create(CultureInfo.InvariantCulture,
-                    $"measured period / π√(1/ab) = {ratio:F2}: the run is far from onset, where the normal form describes only part of the period")));
-            }
-        }
-
-        if (double.IsFinite(measured) && double.IsFinite(field.Period.Value))
-        {
-            var se = Math.Sqrt(Sq(periods.Mean.StandardError) + Sq(field.Period.StandardError));
-            var diff = Math.Abs(field.Period.Value - measured);
-            if (double.IsFinite(se) && diff > 3 * se && diff > 0.02 * measured)
-            {
-                flags.Add(RunFlags.FieldPeriodMismatch);
-                diags.Add(Warn(file, "field-period-mismatch", string.Create(CultureInfo.InvariantCulture,
-                    $"∮dθ/θ̇ = {field.Period.Value:G4} differs from the measured period {measured:G4} by more than three standard errors: the reconstructed field is distorted (oversmoothed or coarse sampling)")));
-            }
-        }
-
+        found.Raise(RunChecks.FewRevolutions(file, periods.Revolutions));
+        found.Raise(RunChecks.FarFromOnset(file, periods.Mean.Value, fromBottleneck.Value));
+        found.Raise(RunChecks.FieldPeriodMismatch(file, periods.Mean, field.Period));
         if (bottleneck is not null)
         {
-            // Samples per bottleneck passage: time spent within one width of θ*, over the sampling interval.
-            var dtTypical = duration / Math.Max(n - 1, 1);
-            var passage = fromBottleneck.Value / 2;
-            if (double.IsFinite(passage) && passage / dtTypical < 10)
-            {
-                flags.Add(RunFlags.CoarseSampling);
-                diags.Add(Warn(file, "coarse-sampling", string.Create(CultureInfo.InvariantCulture,
-                    $"about {passage / dtTypical:F0} samples per bottleneck passage; at least 10 are needed to see its shape: sample faster")));
-            }
-
-            if (double.IsFinite(bottleneck.QuarticBias) && double.IsFinite(bottleneck.A.StandardError)
-                && Math.Abs(bottleneck.QuarticBias) > 3 * bottleneck.A.StandardError && Math.Abs(bottleneck.QuarticBias) > 0.05 * Math.Abs(bottleneck.A.Value))
-            {
-                flags.Add(RunFlags.WindowBias);
-                diags.Add(Info(file, "window-bias", string.Create(CultureInfo.InvariantCulture,
-                    $"a changes by {bottleneck.QuarticBias:G3} when the fit window is halved: the field is not quadratic over the window")));
-            }
+            found.Raise(RunChecks.CoarseSampling(file, fromBottleneck.Value, duration / Math.Max(n - 1, 1)));
+            found.Raise(RunChecks.WindowBias(file, bottleneck));
         }
 
         var noise = PhaseDiffusion.Estimate(tt, raw, segs, field, bottleneck);
-        if (noise is { NoiseDominated: true })
-        {
-            flags.Add(RunFlags.NoiseDominated);
-            diags.Add(Warn(file, "noise-dominated", string.Create(CultureInfo.InvariantCulture,
-                $"phase diffusion D = {noise.Diffusion.Value:G3} ± {noise.Diffusion.StandardError:G2} shortens the bottleneck passage to {noise.PassageRatio:P0} of π/√(ab): noise, not the bottleneck, sets the period; the run is left out of the onset fits")));
-        }
-
-        // Both behaviours in one run: it turned, then rested for the last quarter of the record, or the reverse. A quarter
-        // longer than two periods with less than a tenth of a turn in it is a rest, not a slow bottleneck passage
-        // (common practice, no source).
-        var quarter = 0.25 * (tt[^1] - tt[0]);
-        if (double.IsFinite(measured) && quarter > 2 * measured)
-        {
-            var lastStart = Array.FindIndex(tt, x => x >= tt[^1] - quarter);
-            var firstEnd = Array.FindLastIndex(tt, x => x <= tt[0] + quarter);
-            var restsLast = lastStart > 0 && (ph[^1] - ph[lastStart]) / (2 * Math.PI) < 0.1;
-            var restsFirst = firstEnd > 0 && (ph[firstEnd] - ph[0]) / (2 * Math.PI) < 0.1;
-            if (restsLast || restsFirst)
-            {
-                flags.Add(RunFlags.MixedBehaviour);
-                diags.Add(Warn(file, "mixed-behaviour", restsLast
-                    ? "the run turns and then comes to rest: both behaviours at one parameter value (bistability or drift of the parameter)"
-                    : "the run rests and then starts to turn: both behaviours at one parameter value (bistability or drift of the parameter)"));
-            }
-        }
-
-        return new RunResult(file, param, label, n, duration, turns, trajectory.Direction, smoothing, field, bottleneck, summary, flags, diags) { Noise = noise };
+        found.Raise(RunChecks.NoiseDominated(file, noise));
+        found.Raise(RunChecks.MixedBehaviour(file, tt, ph, periods.Mean.Value));
+        return Result(turns, smoothing, field, bottleneck, summary, noise: noise);
     }
 
     private static int[] CompactSegments(Trajectory trajectory, bool[] used)
@@ -260,10 +201,6 @@ public static class RunAnalyzer
 
         return w;
     }
-
-    private static double Sq(double x) => x * x;
-
-    private static Diagnostic Warn(string file, string code, string message) => new(Severity.Warning, code, message, file);
 
     private static Diagnostic Info(string file, string code, string message) => new(Severity.Info, code, message, file);
 }

@@ -1,53 +1,58 @@
 using NormalFormFit.Bottleneck;
 using NormalFormFit.Field;
+using NormalFormFit.Ingest;
 using NormalFormFit.Smoothing;
 
 namespace NormalFormFit.Analysis;
 
-/// <summary>Per-run flags (stable names; part of the JSON contract).</summary>
-public static class RunFlags
+/// <summary>
+/// What marks a run: raised by the run checks (<see cref="RunChecks"/>), by the input (positions off an ellipse, gaps,
+/// event times), or by the set of runs (<see cref="RunFlag.Bistable"/>, see <see cref="AnalysisReport.FlagsOf"/>).
+/// </summary>
+[System.Diagnostics.CodeAnalysis.SuppressMessage("Naming", "CA1711:Identifiers should not have incorrect suffix", Justification = "A flag is the word for a mark on a run (runs[].flags); one value per run check, not a bit field.")]
+public enum RunFlag
 {
     /// <summary>Fewer than three whole revolutions were timed.</summary>
-    public const string FewRevolutions = "few-revolutions";
+    FewRevolutions,
 
     /// <summary>The run does not turn (less than one revolution).</summary>
-    public const string NotTurning = "not-turning";
+    NotTurning,
 
     /// <summary>The measured period differs from π/√(ab) by more than 25%: the run is far from onset.</summary>
-    public const string FarFromOnset = "far-from-onset";
+    FarFromOnset,
 
     /// <summary>The period from ∮dθ/θ̇ disagrees with the measured period beyond their errors.</summary>
-    public const string FieldPeriodMismatch = "field-period-mismatch";
+    FieldPeriodMismatch,
 
     /// <summary>No parabola opening upward fits the slowest part of the field.</summary>
-    public const string NoBottleneck = "no-bottleneck";
+    NoBottleneck,
 
     /// <summary>The phase jumps by nearly π or more between samples: unwrapping is unsafe.</summary>
-    public const string UnsafeUnwrap = "unsafe-unwrap";
+    UnsafeUnwrap,
 
     /// <summary>Too few samples during a passage through the bottleneck.</summary>
-    public const string CoarseSampling = "coarse-sampling";
+    CoarseSampling,
 
     /// <summary>The window-halving check shows a quartic bias of a comparable to its error.</summary>
-    public const string WindowBias = "window-bias";
+    WindowBias,
 
     /// <summary>Phase noise shortens the bottleneck passage by more than 10%: the run is left out of the onset fits.</summary>
-    public const string NoiseDominated = "noise-dominated";
+    NoiseDominated,
 
     /// <summary>The run turns, then comes to rest (or the reverse): both behaviours at one parameter value.</summary>
-    public const string MixedBehaviour = "mixed-behaviour";
+    MixedBehaviour,
 
     /// <summary>The run rests at a parameter value where other runs turn (or the reverse): hysteresis or bistability.</summary>
-    public const string Bistable = "bistable";
+    Bistable,
 
     /// <summary>Gaps longer than a few sampling steps split the run into segments.</summary>
-    public const string LargeGaps = "large-gaps";
+    LargeGaps,
 
     /// <summary>The orbit of the positions is far from an ellipse: the phase is a protophase (a, b in its units).</summary>
-    public const string NotAnEllipse = "not-an-ellipse";
+    NotAnEllipse,
 
     /// <summary>Event times: periods only, no bottleneck.</summary>
-    public const string PeriodsOnly = "periods-only";
+    PeriodsOnly,
 }
 
 /// <summary>Smoothing summary of a run.</summary>
@@ -79,7 +84,8 @@ public sealed record PeriodSummary(Estimate Measured, Estimate FromBottleneck, E
 /// <param name="Field">Reconstructed θ̇(θ) (null for a run that does not turn).</param>
 /// <param name="Bottleneck">Normal-form fit at the bottleneck (null when none).</param>
 /// <param name="Period">Periods (null for a run that does not turn).</param>
-/// <param name="Flags">Stable flag names, see <see cref="RunFlags"/>.</param>
+/// <param name="Flags">What the run's own evidence marks it with, in the order raised (the set of runs may add
+/// <see cref="RunFlag.Bistable"/>: <see cref="AnalysisReport.FlagsOf"/>).</param>
 /// <param name="Diagnostics">Messages about this run.</param>
 public sealed record RunResult(
     string File,
@@ -93,11 +99,11 @@ public sealed record RunResult(
     PhaseField? Field,
     BottleneckFit? Bottleneck,
     PeriodSummary? Period,
-    IReadOnlyList<string> Flags,
+    IReadOnlyList<RunFlag> Flags,
     IReadOnlyList<Diagnostic> Diagnostics)
 {
     /// <summary>True when the run turned at least once.</summary>
-    public bool IsTurning => !Flags.Contains(RunFlags.NotTurning);
+    public bool IsTurning => !Flags.Contains(RunFlag.NotTurning);
 
     /// <summary>Exponential settling at the stable point, for a run that does not turn (null otherwise or when not resolved).</summary>
     public RelaxationFit? Relaxation { get; init; }
@@ -105,9 +111,9 @@ public sealed record RunResult(
     /// <summary>Phase-diffusion estimate and its effect on the bottleneck passage (null when the run is too short).</summary>
     public NoiseEstimate? Noise { get; init; }
 
-    /// <summary>What the run file recorded: "phase", "positions" or "events".</summary>
-    public string InputKind { get; init; } = "phase";
+    /// <summary>What the run file recorded.</summary>
+    public RecordingKind InputKind { get; init; } = RecordingKind.Phase;
 
     /// <summary>The ellipse fitted to the orbit when the run was recorded as positions; null otherwise.</summary>
-    public NormalFormFit.Ingest.OrbitSummary? Orbit { get; init; }
+    public OrbitSummary? Orbit { get; init; }
 }

@@ -3,6 +3,19 @@ namespace NormalFormFit.Ingest;
 /// <summary>What a run file records.</summary>
 public enum RecordingKind
 {
+    /// <summary>Time and phase (<c>t,theta</c>).</summary>
+    Phase,
+
+    /// <summary>Time and two positions or state variables (<c>t,x,y</c>).</summary>
+    Positions,
+
+    /// <summary>One column of event times (spikes, once-per-turn pulses).</summary>
+    Events,
+}
+
+/// <summary>What the user asks run files to be read as: one <see cref="RecordingKind"/>, or inferred from the columns.</summary>
+public enum RecordingKindOption
+{
     /// <summary>Infer from the columns: a phase column, else x and y columns, else a single column of event times.</summary>
     Auto,
 
@@ -16,15 +29,44 @@ public enum RecordingKind
     Events,
 }
 
+/// <summary>
+/// A run file as read: one derived record per <see cref="RecordingKind"/> (<see cref="PhaseRecording"/>,
+/// <see cref="PositionRecording"/>, <see cref="EventRecording"/>), each holding only its own data.
+/// </summary>
+/// <remarks>
+/// The hierarchy is closed: only this assembly can derive from it (the constructor is private protected), so a switch
+/// over the three kinds is complete; a new kind of recording is a new derived record here.
+/// </remarks>
+public abstract record RunRecording
+{
+    /// <summary>Sets the file the recording came from.</summary>
+    private protected RunRecording(string file) => File = file;
+
+    /// <summary>Path as given by the user.</summary>
+    public string File { get; init; }
+
+    /// <summary>What the recording holds.</summary>
+    public abstract RecordingKind Kind { get; }
+
+    /// <summary>Number of samples (or events).</summary>
+    public abstract int Count { get; }
+}
+
 /// <summary>A phase recording as read: time and phase in radians (not yet unwrapped), split at gaps.</summary>
 /// <param name="File">Path as given by the user.</param>
 /// <param name="Time">Sample times, strictly increasing.</param>
 /// <param name="Phase">Phase in radians, as recorded (wrapped or not).</param>
 /// <param name="SegmentStarts">Index of the first sample of each segment; gaps (missing values) separate segments.</param>
-public sealed record PhaseRecording(string File, double[] Time, double[] Phase, int[] SegmentStarts)
+public sealed record PhaseRecording(string File, double[] Time, double[] Phase, int[] SegmentStarts) : RunRecording(File)
 {
     /// <summary>The phase was recorded unwrapped: within a segment it is used as is.</summary>
     public bool Unwrapped { get; init; }
+
+    /// <inheritdoc/>
+    public override RecordingKind Kind => RecordingKind.Phase;
+
+    /// <inheritdoc/>
+    public override int Count => Time.Length;
 }
 
 /// <summary>Positions (x, y) versus time, as read, split at gaps.</summary>
@@ -34,21 +76,24 @@ public sealed record PhaseRecording(string File, double[] Time, double[] Phase, 
 /// <param name="Y">Vertical position or second state variable.</param>
 /// <param name="SegmentStarts">First sample of each segment.</param>
 /// <param name="YDown">The y axis points down (image rows).</param>
-public sealed record PositionRecording(string File, double[] Time, double[] X, double[] Y, int[] SegmentStarts, bool YDown);
+public sealed record PositionRecording(string File, double[] Time, double[] X, double[] Y, int[] SegmentStarts, bool YDown) : RunRecording(File)
+{
+    /// <inheritdoc/>
+    public override RecordingKind Kind => RecordingKind.Positions;
+
+    /// <inheritdoc/>
+    public override int Count => Time.Length;
+}
 
 /// <summary>Event times as read (strictly increasing), split at gaps (missing values).</summary>
 /// <param name="File">Path as given by the user.</param>
 /// <param name="Times">Event times.</param>
 /// <param name="SegmentStarts">First event of each segment; intervals are not taken across a gap.</param>
-public sealed record EventRecording(string File, double[] Times, int[] SegmentStarts);
-
-/// <summary>A run file as read: exactly one of the recordings is set, according to <see cref="Kind"/>.</summary>
-/// <param name="Kind">Phase, Positions or Events (never Auto).</param>
-/// <param name="Phase">Set for <see cref="RecordingKind.Phase"/>.</param>
-/// <param name="Positions">Set for <see cref="RecordingKind.Positions"/>.</param>
-/// <param name="Events">Set for <see cref="RecordingKind.Events"/>.</param>
-public sealed record RunRecording(RecordingKind Kind, PhaseRecording? Phase, PositionRecording? Positions, EventRecording? Events)
+public sealed record EventRecording(string File, double[] Times, int[] SegmentStarts) : RunRecording(File)
 {
-    /// <summary>Number of samples (or events).</summary>
-    public int Count => Phase?.Time.Length ?? Positions?.Time.Length ?? Events?.Times.Length ?? 0;
+    /// <inheritdoc/>
+    public override RecordingKind Kind => RecordingKind.Events;
+
+    /// <inheritdoc/>
+    public override int Count => Times.Length;
 }

@@ -21,7 +21,7 @@ public sealed record RunReadOptions
     public bool DecimalComma { get; init; }
 
     /// <summary>What the file records; inferred from the columns by default.</summary>
-    public RecordingKind Kind { get; init; } = RecordingKind.Auto;
+    public RecordingKindOption Kind { get; init; } = RecordingKindOption.Auto;
 
     /// <summary>Horizontal position column (positions): a header name or a 1-based position.</summary>
     public string XColumn { get; init; } = "x";
@@ -58,16 +58,16 @@ public static class RunReader
     /// </summary>
     public static Loaded<PhaseRecording> Read(string path, RunReadOptions? options = null, string? displayName = null)
     {
-        var any = ReadRecording(path, (options ?? RunReadOptions.Default) with { Kind = RecordingKind.Phase }, displayName);
-        return new Loaded<PhaseRecording>(any.Value?.Phase, any.Diagnostics);
+        var any = ReadRecording(path, (options ?? RunReadOptions.Default) with { Kind = RecordingKindOption.Phase }, displayName);
+        return new Loaded<PhaseRecording>(any.Value as PhaseRecording, any.Diagnostics);
     }
 
     /// <summary>Reads a phase run from a stream; <paramref name="name"/> is used in messages.</summary>
     public static Loaded<PhaseRecording> Read(Stream stream, string name, RunReadOptions options)
     {
         ArgumentNullException.ThrowIfNull(options);
-        var any = ReadRecording(stream, name, options with { Kind = RecordingKind.Phase });
-        return new Loaded<PhaseRecording>(any.Value?.Phase, any.Diagnostics);
+        var any = ReadRecording(stream, name, options with { Kind = RecordingKindOption.Phase });
+        return new Loaded<PhaseRecording>(any.Value as PhaseRecording, any.Diagnostics);
     }
 
     /// <summary>
@@ -271,13 +271,11 @@ public static class RunReader
             }
         }
 
-        var recording = layout.Kind switch
+        RunRecording recording = layout.Kind switch
         {
-            RecordingKind.Phase => new RunRecording(RecordingKind.Phase,
-                new PhaseRecording(name, time, values[1].ToArray(), segs) { Unwrapped = options.PhaseUnwrapped }, null, null),
-            RecordingKind.Positions => new RunRecording(RecordingKind.Positions, null,
-                new PositionRecording(name, time, values[1].ToArray(), values[2].ToArray(), segs, options.YDown), null),
-            _ => new RunRecording(RecordingKind.Events, null, null, new EventRecording(name, time, segs)),
+            RecordingKind.Phase => new PhaseRecording(name, time, values[1].ToArray(), segs) { Unwrapped = options.PhaseUnwrapped },
+            RecordingKind.Positions => new PositionRecording(name, time, values[1].ToArray(), values[2].ToArray(), segs, options.YDown),
+            _ => new EventRecording(name, time, segs),
         };
         return new Loaded<RunRecording>(recording, diagnostics);
     }
@@ -334,7 +332,11 @@ public static class RunReader
         return [.. result];
     }
 
-    private sealed record Layout(RecordingKind Kind, int[] Columns, string[] Roles, string? Error);
+    // Kind, Columns and Roles mean something only without an Error.
+    private sealed record Layout(RecordingKind Kind, int[] Columns, string[] Roles, string? Error)
+    {
+        public static Layout Failed(string error) => new(default, [], [], error);
+    }
 
     private static readonly string[] PhaseRoles = ["time", "phase"];
     private static readonly string[] PositionRoles = ["time", "x", "y"];
@@ -342,10 +344,9 @@ public static class RunReader
 
     private static Layout LayoutWithoutHeader(int fields, RunReadOptions o)
     {
-        var kind = o.Kind != RecordingKind.Auto ? o.Kind
-            : fields == 1 ? RecordingKind.Events
+        var kind = Requested(o.Kind) ?? (fields == 1 ? RecordingKind.Events
             : fields == 2 ? RecordingKind.Phase
-            : RecordingKind.Positions;
+            : RecordingKind.Positions);
         int Pos(string? spec, int fallback) => spec is not null && TryPosition(spec, out var k) ? k : fallback;
         int[] cols = kind switch
         {
@@ -364,17 +365,14 @@ public static class RunReader
     {
         var found = string.Join(", ", header);
         var hint = "expected 't,theta' (phase), 't,x,y' (positions) or one column of event times; name the columns with --time-column, --phase-column, --x-column, --y-column or --event-column (by header name or 1-based position), or set --kind";
-        var kind = o.Kind;
-        if (kind == RecordingKind.Auto)
-        {
-            kind = Resolve(o.PhaseColumn, header) >= 0 ? RecordingKind.Phase
+        var requested = Requested(o.Kind)
+            ?? (Resolve(o.PhaseColumn, header) >= 0 ? RecordingKind.Phase
                 : Resolve(o.XColumn, header) >= 0 && Resolve(o.YColumn, header) >= 0 ? RecordingKind.Positions
                 : header.Length == 1 || (o.EventColumn is { } ev && Resolve(ev, header) >= 0) ? RecordingKind.Events
-                : RecordingKind.Auto;
-            if (kind == RecordingKind.Auto)
-            {
-                return new Layout(kind, [], [], $"cannot tell what the file records from its header (found: {found}); {hint}");
-            }
+                : null);
+        if (requested is not { } kind)
+        {
+            return Layout.Failed($"cannot tell what the file records from its header (found: {found}); {hint}");
         }
 
         string[] specs = kind switch
@@ -390,6 +388,14 @@ public static class RunReader
             ? new Layout(kind, cols, roles, $"no {roles[missing]} column '{specs[missing]}' in the header (found: {found}); {hint}")
             : new Layout(kind, cols, roles, null);
     }
+
+    private static RecordingKind? Requested(RecordingKindOption option) => option switch
+    {
+        RecordingKindOption.Phase => RecordingKind.Phase,
+        RecordingKindOption.Positions => RecordingKind.Positions,
+        RecordingKindOption.Events => RecordingKind.Events,
+        _ => null,
+    };
 
     private static string[] Roles(RecordingKind kind) => kind switch
     {

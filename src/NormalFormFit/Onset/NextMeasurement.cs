@@ -4,16 +4,13 @@ using MathNet.Numerics.LinearAlgebra;
 namespace NormalFormFit.Onset;
 
 /// <summary>A suggested measurement: where to record more runs and the onset interval expected after them.</summary>
-/// <param name="Route">The onset route whose interval the runs shrink most ("bottleneck" or "period").</param>
+/// <param name="Route">The onset route whose interval the runs shrink most.</param>
 /// <param name="Param">Control parameter μ of the new runs.</param>
 /// <param name="Runs">Number of new runs at <paramref name="Param"/>.</param>
 /// <param name="CurrentCi95">The route's 95% interval now, in the same approximation (μc ± t·sd/|slope|).</param>
 /// <param name="ExpectedCi95">The interval expected after the new runs.</param>
-public sealed record NextMeasurement(string Route, double Param, int Runs, Interval CurrentCi95, Interval ExpectedCi95)
-{
-    /// <summary>Expected period of the motion at <see cref="Param"/> from the period trend (NaN when unknown).</summary>
-    public double ExpectedPeriod { get; init; } = double.NaN;
-}
+/// <param name="ExpectedPeriod">Expected period of the motion at <paramref name="Param"/> from the period trend (NaN when unknown).</param>
+public sealed record NextMeasurement(OnsetRoute Route, double Param, int Runs, Interval CurrentCi95, Interval ExpectedCi95, double ExpectedPeriod);
 
 /// <summary>
 /// Chooses the parameter value whose new runs shrink a route's onset interval most, from the fitted trend and its
@@ -27,7 +24,11 @@ public sealed record NextMeasurement(string Route, double Param, int Runs, Inter
 public static class MeasurementPlanner
 {
     /// <summary>The best single parameter value for <paramref name="runs"/> new runs, or null when the route has no estimate.</summary>
-    public static NextMeasurement? Suggest(OnsetEstimate estimate, IReadOnlyList<TrendPoint> points, int runs = 2)
+    /// <param name="estimate">The route's onset estimate.</param>
+    /// <param name="points">The runs' points the route fitted.</param>
+    /// <param name="runs">New runs to place.</param>
+    /// <param name="periodCurve">The period route's curve of T⁻², which gives the expected period of the new runs (none: NaN).</param>
+    public static NextMeasurement? Suggest(OnsetEstimate estimate, IReadOnlyList<TrendPoint> points, int runs = 2, OnsetCurve? periodCurve = null)
     {
         ArgumentNullException.ThrowIfNull(estimate);
         ArgumentNullException.ThrowIfNull(points);
@@ -94,9 +95,14 @@ public static class MeasurementPlanner
             }
         }
 
-        return double.IsFinite(bestHalf)
-            ? new NextMeasurement(estimate.Route, bestMu, runs, new Interval(root - current, root + current), new Interval(root - bestHalf, root + bestHalf))
-            : null;
+        if (!double.IsFinite(bestHalf))
+        {
+            return null;
+        }
+
+        var y = periodCurve?.Evaluate(bestMu) ?? double.NaN;
+        return new NextMeasurement(estimate.Route, bestMu, runs, new Interval(root - current, root + current), new Interval(root - bestHalf, root + bestHalf),
+            y > 0 ? 1 / Math.Sqrt(y) : double.NaN);
     }
 
     private static void AddOuter(Matrix<double> m, Vector<double> g, double w)

@@ -11,8 +11,8 @@ namespace NormalFormFit.Onset;
 /// </remarks>
 public abstract record OnsetCurve
 {
-    /// <summary>Stable name of the law (JSON <c>law</c>): see <see cref="OnsetLaws"/>.</summary>
-    public abstract string Law { get; }
+    /// <summary>Which law the curve follows.</summary>
+    public abstract OnsetLaw Law { get; }
 
     /// <summary>The law in plain words, for legends and tables.</summary>
     public abstract string Description { get; }
@@ -48,12 +48,12 @@ public abstract record OnsetCurve
     internal abstract double[] RootGradient(double root);
 }
 
-/// <summary>Stable names of <see cref="OnsetCurve.Law"/>.</summary>
-public static class OnsetLaws
+/// <summary>The laws an onset route can fit (<see cref="OnsetCurve.Law"/>).</summary>
+public enum OnsetLaw
 {
     /// <summary>A straight line or a quadratic in μ fitted to a or T⁻².</summary>
-    public const string Polynomial = "polynomial";
+    Polynomial,
 
     /// <summary>T = α(μ − μc)^−½ + β fitted to the periods: the saddle-node passage plus a constant excursion time.</summary>
-    public const string SquareRootWithOffset = "square-root-with-offset";
+    SquareRootWithOffset,
 }

@@ -19,7 +19,7 @@ public sealed record Trend(double[] Coefficients, double[,] Covariance, double O
     public override bool Scaled { get; init; } = Scaled;
 
     /// <inheritdoc/>
-    public override string Law => OnsetLaws.Polynomial;
+    public override OnsetLaw Law => OnsetLaw.Polynomial;
 
     /// <inheritdoc/>
     public override string Description => Degree == 1 ? "weighted straight line" : $"weighted polynomial, degree {Degree}";
@@ -108,7 +108,7 @@ public sealed record Trend(double[] Coefficients, double[,] Covariance, double O
 }
 
 /// <summary>An onset estimate μc from one route.</summary>
-/// <param name="Route">"bottleneck" (a → 0) or "period" (T⁻² → 0).</param>
+/// <param name="Route">The bottleneck route (a → 0) or the period route (T⁻² → 0).</param>
 /// <param name="Value">μc.</param>
 /// <param name="StandardError">Delta-method standard error, sd(y(μc))/|y′(μc)| (for the square-root law: from the
 /// Jacobian of all its parameters).</param>
@@ -118,7 +118,7 @@ public sealed record Trend(double[] Coefficients, double[,] Covariance, double O
 /// <param name="Curve">The fitted curve: a polynomial <see cref="Onset.Trend"/>, or for the period route possibly the
 /// square-root law with an offset (<see cref="SquareRootPeriodLaw"/>).</param>
 /// <param name="Diagnostics">What qualifies the estimate.</param>
-public sealed record OnsetEstimate(string Route, double Value, double StandardError, Interval Ci95, int Runs, OnsetCurve? Curve, IReadOnlyList<Diagnostic> Diagnostics)
+public sealed record OnsetEstimate(OnsetRoute Route, double Value, double StandardError, Interval Ci95, int Runs, OnsetCurve? Curve, IReadOnlyList<Diagnostic> Diagnostics)
 {
     /// <summary>The fitted polynomial trend (null when the route chose another law; see <see cref="Curve"/>).</summary>
     public Trend? Trend => Curve as Trend;
@@ -126,37 +126,45 @@ public sealed record OnsetEstimate(string Route, double Value, double StandardEr
     /// <summary>True when a finite value was obtained.</summary>
     public bool IsAvailable => double.IsFinite(Value);
 
-    /// <summary>
-    /// Whether the route's model applies to the kind of onset found: <c>applicable</c>, <c>unconfirmed</c> (the kind
-    /// could not be told), <c>unreliable</c> (homoclinic) or <c>not-applicable</c> (finite period). See <see cref="RouteStatus"/>.
-    /// </summary>
-    public string Status { get; init; } = RouteStatus.Applicable;
-
-    /// <summary>Why the route is not plainly applicable, in plain words (null when it is).</summary>
-    public string? StatusReason { get; init; }
-
     /// <summary>Runs below onset (relaxation rates) that entered this route's trend.</summary>
     public int RunsBelowOnset { get; init; }
 
     /// <summary>An estimate that could not be made, with the reason.</summary>
-    public static OnsetEstimate NotAvailable(string route, int runs, Diagnostic why) =>
+    public static OnsetEstimate NotAvailable(OnsetRoute route, int runs, Diagnostic why) =>
         new(route, double.NaN, double.NaN, new Interval(double.NaN, double.NaN), runs, null, [why]);
 }
 
-/// <summary>Stable names of <see cref="OnsetEstimate.Status"/>.</summary>
-public static class RouteStatus
+/// <summary>The two routes to the onset.</summary>
+public enum OnsetRoute
+{
+    /// <summary>The minimum speed a of the bottleneck normal form, a → 0.</summary>
+    Bottleneck,
+
+    /// <summary>The measured period, T⁻² → 0.</summary>
+    Period,
+}
+
+/// <summary>Whether a route's model applies to the kind of onset found.</summary>
+public enum RouteStatus
 {
     /// <summary>The kind of onset is a saddle-node on the circle: the route's model holds.</summary>
-    public const string Applicable = "applicable";
+    Applicable,
 
     /// <summary>The kind of onset could not be told: the route assumes a saddle-node on the circle.</summary>
-    public const string Unconfirmed = "unconfirmed";
+    Unconfirmed,
 
     /// <summary>Homoclinic onset: the trend the route extrapolates is not the one its model predicts.</summary>
-    public const string Unreliable = "unreliable";
+    Unreliable,
 
     /// <summary>Finite-period onset: there is no bottleneck to close.</summary>
-    public const string NotApplicable = "not-applicable";
+    NotApplicable,
+}
+
+/// <summary>The routes' names in the sentences of messages.</summary>
+internal static class OnsetRouteWords
+{
+    /// <summary>"bottleneck" or "period", as in "the period route".</summary>
+    public static string Noun(this OnsetRoute route) => route == OnsetRoute.Bottleneck ? "bottleneck" : "period";
 }
 
 /// <summary>Agreement of two onset estimates: z = (μ₁ − μ₂)/√(σ₁² + σ₂²), consistent when |z| ≤ 2.</summary>

@@ -24,9 +24,6 @@ public static class PeriodRoute
     /// <summary>Fewest runs with which the square-root law competes.</summary>
     public const int MinimumRunsForLaw = 6;
 
-    /// <summary>Route name.</summary>
-    public const string Route = "period";
-
     /// <summary>The period route's estimate from the runs' (μ, T⁻², se(T⁻²)) points.</summary>
     /// <param name="points">Turning runs: y = T⁻² with se(y) = 2 se(T)/T³.</param>
     /// <param name="maxLawCoefficients">2: only T = αd^−½ + β; 3 (default): also with the next term γd^½ of the same
@@ -34,7 +31,7 @@ public static class PeriodRoute
     public static OnsetEstimate Estimate(IReadOnlyList<TrendPoint> points, int maxLawCoefficients = 3)
     {
         ArgumentNullException.ThrowIfNull(points);
-        var poly = TrendFit.Root(Route, points);
+        var poly = TrendFit.Root(OnsetRoute.Period, points);
         var law = FitLaw(points, maxLawCoefficients);
         if (law is null)
         {
@@ -108,6 +105,6 @@ public static class PeriodRoute
         }
 
         var se = Math.Sqrt(law.Covariance[law.ParameterCount - 1, law.ParameterCount - 1]);
-        return new OnsetEstimate(Route, law.Onset, se, fit.Ci95, fit.Points.Count, law, diags);
+        return new OnsetEstimate(OnsetRoute.Period, law.Onset, se, fit.Ci95, fit.Points.Count, law, diags);
     }
 }

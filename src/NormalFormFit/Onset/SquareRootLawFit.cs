@@ -86,13 +86,11 @@ public static class SquareRootLawFit
 
         var dof = n - p;
         var red = chi2 / dof;
-        var law = new SquareRootPeriodLaw(coef, muc, side, new double[p, p], red, dof, Scaled: true);
-
         // Covariance from the Jacobian of all parameters (α, β[, γ], μc), scaled by the reduced χ².
         var j = Matrix<double>.Build.Dense(n, p);
         for (var i = 0; i < n; i++)
         {
-            var g = law.FitGradient(points[i].Mu);
+            var g = SquareRootPeriodLaw.Gradient(coef, muc, side, points[i].Mu);
             for (var k = 0; k < p; k++)
             {
                 j[i, k] = g[k] / points[i].StandardError;
@@ -100,7 +98,7 @@ public static class SquareRootLawFit
         }
 
         var cov = j.TransposeThisAndMultiply(j).Inverse() * red;
-        law = law with { Covariance = cov.ToArray() };
+        var law = new SquareRootPeriodLaw(coef, muc, side, cov.ToArray(), red, dof, Scaled: true);
 
         var k2 = p + 1;
         var aicc = n - k2 - 1 > 0

@@ -23,7 +23,7 @@ public sealed record SquareRootPeriodLaw(double[] Coefficients, double Onset, in
     public override bool Scaled { get; init; } = Scaled;
 
     /// <inheritdoc/>
-    public override string Law => OnsetLaws.SquareRootWithOffset;
+    public override OnsetLaw Law => OnsetLaw.SquareRootWithOffset;
 
     /// <inheritdoc/>
     public override string Description => Coefficients.Length == 2
@@ -78,19 +78,22 @@ public sealed record SquareRootPeriodLaw(double[] Coefficients, double Onset, in
     }
 
     /// <summary>Gradient of T(μ) with respect to (α, β[, γ], μc).</summary>
-    internal override double[] FitGradient(double mu)
+    internal override double[] FitGradient(double mu) => Gradient(Coefficients, Onset, Side, mu);
+
+    /// <summary>Gradient of T(μ) with respect to (α, β[, γ], μc) for the given parameters.</summary>
+    internal static double[] Gradient(double[] coefficients, double onset, int side, double mu)
     {
-        var d = Side * (mu - Onset);
-        var m = Coefficients.Length;
+        var d = side * (mu - onset);
+        var m = coefficients.Length;
         var grad = new double[m + 1];
         var dTdd = 0.0;
         for (var k = 0; k < m; k++)
         {
             grad[k] = Math.Pow(d, 0.5 * (k - 1));
-            dTdd += Coefficients[k] * 0.5 * (k - 1) * Math.Pow(d, 0.5 * (k - 3));
+            dTdd += coefficients[k] * 0.5 * (k - 1) * Math.Pow(d, 0.5 * (k - 3));
         }
 
-        grad[m] = -Side * dTdd;
+        grad[m] = -side * dTdd;
         return grad;
     }
 

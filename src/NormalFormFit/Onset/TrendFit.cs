@@ -84,21 +84,23 @@ public static class TrendFit
     /// Estimates the root μc of the trend through <paramref name="points"/>; degree 1, or 2 when AICc prefers
     /// it (only with five points or more, so that two degrees of freedom remain).
     /// </summary>
-    /// <param name="route">Route name for messages.</param>
+    /// <param name="route">The route, named in messages.</param>
     /// <param name="points">The runs' points; their standard errors are smoothed across μ.</param>
     /// <param name="allowCurvature">Whether a quadratic trend may be chosen.</param>
-    /// <param name="extraPoints">Points of another kind (e.g. from runs below onset) added after the smoothing, with their own errors.</param>
-    public static OnsetEstimate Root(string route, IReadOnlyList<TrendPoint> points, bool allowCurvature = true, IReadOnlyList<TrendPoint>? extraPoints = null)
+    /// <param name="belowOnset">Points from runs below onset (relaxation rates), added after the smoothing with their own
+    /// errors; counted in <see cref="OnsetEstimate.RunsBelowOnset"/>.</param>
+    public static OnsetEstimate Root(OnsetRoute route, IReadOnlyList<TrendPoint> points, bool allowCurvature = true, IReadOnlyList<TrendPoint>? belowOnset = null)
     {
         ArgumentNullException.ThrowIfNull(points);
         var diags = new List<Diagnostic>();
         if (points.Count < 3)
         {
             return OnsetEstimate.NotAvailable(route, points.Count, new Diagnostic(Severity.Warning, "too-few-runs",
-                $"the {route} route needs at least three usable runs, found {points.Count}"));
+                $"the {route.Noun()} route needs at least three usable runs, found {points.Count}"));
         }
 
-        points = extraPoints is { Count: > 0 } ? [.. SmoothErrors(points), .. extraPoints] : SmoothErrors(points);
+        var below = belowOnset?.Count ?? 0;
+        points = belowOnset is { Count: > 0 } extra ? [.. SmoothErrors(points), .. extra] : SmoothErrors(points);
         var n = points.Count;
         var trend = Fit(points, 1);
         if (allowCurvature && n >= 5)
@@ -108,7 +110,7 @@ public static class TrendFit
             {
                 trend = quad;
                 diags.Add(new Diagnostic(Severity.Info, "curved-trend",
-                    $"the {route} route uses a trend with a curvature term (preferred by AICc over a straight line)"));
+                    $"the {route.Noun()} route uses a trend with a curvature term (preferred by AICc over a straight line)"));
             }
         }
 
@@ -116,8 +118,8 @@ public static class TrendFit
         if (double.IsNaN(root))
         {
             diags.Add(new Diagnostic(Severity.Warning, "no-root",
-                $"the {route} trend does not reach zero near the data; the runs may be far from onset or the trend flat"));
-            return new OnsetEstimate(route, double.NaN, double.NaN, new Interval(double.NaN, double.NaN), n, trend, diags);
+                $"the {route.Noun()} trend does not reach zero near the data; the runs may be far from onset or the trend flat"));
+            return new OnsetEstimate(route, double.NaN, double.NaN, new Interval(double.NaN, double.NaN), n, trend, diags) { RunsBelowOnset = below };
         }
 
         var slope = trend.Slope(root);
@@ -126,7 +128,7 @@ public static class TrendFit
         if (!trend.Scaled)
         {
             diags.Add(new Diagnostic(Severity.Warning, "no-residual-dof",
-                $"the {route} trend has no residual degrees of freedom; its interval rests on the per-run errors alone"));
+                $"the {route.Noun()} trend has no residual degrees of freedom; its interval rests on the per-run errors alone"));
         }
 
         var span = points.Max(r => r.Mu) - points.Min(r => r.Mu);
@@ -134,10 +136,10 @@ public static class TrendFit
         if (double.IsInfinity(ci.Low) || double.IsInfinity(ci.High))
         {
             diags.Add(new Diagnostic(Severity.Warning, "unbounded-interval",
-                $"the data cannot bound the onset on one side by the {route} route (the trend is not significantly sloped); measure closer to onset"));
+                $"the data cannot bound the onset on one side by the {route.Noun()} route (the trend is not significantly sloped); measure closer to onset"));
         }
 
-        return new OnsetEstimate(route, root, se, ci, n, trend, diags);
+        return new OnsetEstimate(route, root, se, ci, n, trend, diags) { RunsBelowOnset = below };
     }
 
     /// <summary>

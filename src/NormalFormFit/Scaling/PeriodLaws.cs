@@ -1,13 +1,26 @@
 
 namespace NormalFormFit.Scaling;
 
+/// <summary>The three period laws weighed against each other.</summary>
+public enum PeriodLaw
+{
+    /// <summary>Saddle-node on the circle, T = C(μ−μc)^(−½) + c.</summary>
+    SaddleNode,
+
+    /// <summary>Homoclinic, T = −(1/λ)ln(μ−μc) + c.</summary>
+    Homoclinic,
+
+    /// <summary>Finite period at onset, T = T₀ + s(μ−μ̄) + q(μ−μ̄)².</summary>
+    FinitePeriod,
+}
+
 /// <summary>One period law fitted to the runs.</summary>
-/// <param name="Law">"saddle-node", "homoclinic" or "finite-period".</param>
+/// <param name="Law">Which law.</param>
 /// <param name="Onset">μc of the law (NaN for the finite-period law, which has none).</param>
 /// <param name="ResidualSumOfSquares">Weighted residual sum of squares.</param>
 /// <param name="Aic">Akaike's criterion with the variance scale estimated, n·ln(RSS/n) + 2k.</param>
 /// <param name="AtBoundary">True when μc sits at the largest distance allowed (the singularity is out of reach of the runs).</param>
-public sealed record PeriodLawFit(string Law, double Onset, double ResidualSumOfSquares, double Aic, bool AtBoundary);
+public sealed record PeriodLawFit(PeriodLaw Law, double Onset, double ResidualSumOfSquares, double Aic, bool AtBoundary);
 
 /// <summary>Information-criterion weights of the three period laws (they sum to one).</summary>
 /// <param name="SaddleNode">T = C(μ−μc)^(−½) + c.</param>
@@ -17,8 +30,8 @@ public sealed record PeriodLawFit(string Law, double Onset, double ResidualSumOf
 public sealed record PeriodLawWeights(double SaddleNode, double Homoclinic, double FinitePeriod, IReadOnlyList<PeriodLawFit> Fits)
 {
     /// <summary>The law with the largest weight.</summary>
-    public string Best => SaddleNode >= Homoclinic && SaddleNode >= FinitePeriod ? "saddle-node"
-        : Homoclinic >= FinitePeriod ? "homoclinic" : "finite-period";
+    public PeriodLaw Best => SaddleNode >= Homoclinic && SaddleNode >= FinitePeriod ? PeriodLaw.SaddleNode
+        : Homoclinic >= FinitePeriod ? PeriodLaw.Homoclinic : PeriodLaw.FinitePeriod;
 
     /// <summary>The largest weight.</summary>
     public double BestWeight => Math.Max(SaddleNode, Math.Max(Homoclinic, FinitePeriod));
@@ -61,11 +74,11 @@ public static class PeriodLaws
             return null;
         }
 
-        var sn = Singular(pts, sig, side, edge, span, d => Math.Pow(d, -0.5), "saddle-node");
-        var ho = Singular(pts, sig, side, edge, span, d => -Math.Log(d), "homoclinic");
+        var sn = Singular(pts, sig, side, edge, span, d => Math.Pow(d, -0.5), PeriodLaw.SaddleNode);
+        var ho = Singular(pts, sig, side, edge, span, d => -Math.Log(d), PeriodLaw.Homoclinic);
         var mean = pts.Average(p => p.Mu);
         var fpRss = Linear(pts, sig, x => [1.0, x - mean, (x - mean) * (x - mean)], out _);
-        var fp = new PeriodLawFit("finite-period", double.NaN, fpRss, Aic(fpRss, n), false);
+        var fp = new PeriodLawFit(PeriodLaw.FinitePeriod, double.NaN, fpRss, Aic(fpRss, n), false);
         var fits = new[] { sn, ho, fp };
         var min = fits.Min(f => f.Aic);
         var w = fits.Select(f => double.IsFinite(f.Aic) ? Math.Exp(-0.5 * (f.Aic - min)) : 0.0).ToArray();
@@ -75,7 +88,7 @@ public static class PeriodLaws
 
     private static double Aic(double rss, int n) => (n * Math.Log(Math.Max(rss, 1e-300) / n)) + (2 * 4);
 
-    private static PeriodLawFit Singular(PeriodPoint[] pts, double[] sig, int side, double edge, double span, Func<double, double> shape, string law)
+    private static PeriodLawFit Singular(PeriodPoint[] pts, double[] sig, int side, double edge, double span, Func<double, double> shape, PeriodLaw law)
     {
         double Rss(double logd)
         {

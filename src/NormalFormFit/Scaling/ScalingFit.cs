@@ -9,34 +9,38 @@ namespace NormalFormFit.Scaling;
 /// <param name="StandardError">Standard error of the mean period.</param>
 public readonly record struct PeriodPoint(double Mu, double Period, double StandardError);
 
-/// <summary>Stable names of the forms of the scaling law (part of the JSON contract, <c>scaling.form</c>).</summary>
-public static class ScalingForms
+/// <summary>The forms of the scaling law.</summary>
+public enum ScalingForm
 {
     /// <summary>T = C·d^(−β)·exp(κ₁d + κ₂d²), fitted on log T.</summary>
-    public const string PowerLaw = "power-law";
+    PowerLaw,
 
     /// <summary>T = C·d^(−β) + T₀ (+ s·d), fitted on T.</summary>
-    public const string PowerLawWithOffset = "power-law-with-offset";
+    PowerLawWithOffset,
 }
 
 /// <summary>
-/// The fitted scaling law, T = C·d^(−β)·exp(κ₁d + κ₂d²) or T = C·d^(−β) + T₀ (+ s·d) with d = |μ − μc|, and the
-/// verdict on the kind of onset.
+/// The fitted scaling law, T = C·d^(−β)·exp(κ₁d + κ₂d²) or T = C·d^(−β) + T₀ (+ s·d) with d = |μ − μc|. The kind of
+/// onset is decided from it and the other evidence by <see cref="OnsetKindDecision"/>.
 /// </summary>
 /// <param name="Exponent">β with its standard error.</param>
 /// <param name="Ci95">95% interval of β (Student-t, n − p degrees of freedom).</param>
 /// <param name="Onset">μc of this fit with its standard error.</param>
 /// <param name="Correction">κ₁ (0 when the first-order correction was not kept or the form has an offset).</param>
 /// <param name="Runs">Runs used.</param>
-/// <param name="Verdict">One of <c>saddle-node-on-circle</c>, <c>homoclinic</c>, <c>finite-period</c>, <c>undetermined</c>.</param>
-/// <param name="Evidence">Plain-words evidence for the verdict.</param>
-public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate Onset, double Correction, int Runs, string Verdict, string Evidence)
+public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate Onset, double Correction, int Runs)
 {
-    /// <summary>Akaike weights of the three period laws fitted to the same runs (null when they could not be fitted).</summary>
-    public PeriodLawWeights? Weights { get; init; }
+    /// <summary>True when the 95% interval of β reaches ½ within <see cref="ScalingFit.EquivalenceMargin"/>.</summary>
+    /// <remarks>
+    /// The margin absorbs the higher-order terms of the law that a few runs cannot resolve (common practice, no source).
+    /// </remarks>
+    public bool AdmitsOneHalf => Ci95.Low <= 0.5 + ScalingFit.EquivalenceMargin && Ci95.High >= 0.5 - ScalingFit.EquivalenceMargin;
 
-    /// <summary>Whether the minimum speed a extrapolates to zero (null until the runs are combined).</summary>
-    public MinimumSpeedTrend? MinimumSpeed { get; init; }
+    /// <summary>True when the 95% interval of β is finite and no wider than <see cref="ScalingFit.InformativeWidth"/>.</summary>
+    public bool IsInformative => double.IsFinite(Ci95.Width) && Ci95.Width <= ScalingFit.InformativeWidth;
+
+    /// <summary>True when the exponent alone supports the square-root law: informative and admitting ½.</summary>
+    public bool SupportsOneHalf => IsInformative && AdmitsOneHalf;
 
     /// <summary>
     /// The fitted curve: log T = c₀ − β·log d + Σₖ κₖdᵏ with d = |μ − μc| as coefficients [c₀, β, κ₁, …]
@@ -44,8 +48,8 @@ public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate On
     /// </summary>
     public IReadOnlyList<double> LogModel { get; init; } = [];
 
-    /// <summary>Which form was chosen by AICc: <see cref="ScalingForms.PowerLaw"/> or <see cref="ScalingForms.PowerLawWithOffset"/>.</summary>
-    public string Form { get; init; } = ScalingForms.PowerLaw;
+    /// <summary>Which form was chosen by AICc.</summary>
+    public ScalingForm Form { get; init; } = ScalingForm.PowerLaw;
 
     /// <summary>T₀ of the form with an offset, with its standard error (null for the log-T form).</summary>
     public Estimate? Offset { get; init; }
@@ -124,15 +128,14 @@ public static class ScalingFit
         var q = f.Dof > 0 ? StudentT.InvCDF(0, 1, f.Dof, 0.975) : double.PositiveInfinity;
         var beta = new Estimate(f.Beta, f.BetaSe);
         var ci = new Interval(f.Beta - (q * f.BetaSe), f.Beta + (q * f.BetaSe));
-        var (verdict, evidence) = Judge(beta, ci, n);
-        return f.Form == ScalingForms.PowerLawWithOffset
-            ? new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), 0, n, verdict, evidence)
+        return f.Form == ScalingForm.PowerLawWithOffset
+            ? new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), 0, n)
             {
                 Form = f.Form,
                 Offset = f.Offset,
                 OffsetModel = f.Coefficients,
             }
-            : new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), f.Kappa, n, verdict, evidence) { LogModel = f.Coefficients };
+            : new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), f.Kappa, n) { LogModel = f.Coefficients };
     }
 
     /// <summary>
@@ -188,27 +191,11 @@ public static class ScalingFit
         new(o.MuC, o.Beta, o.BetaSe, o.MuCSe, 0, n - o.Parameters, Aicc(o.ChiSquare, n, o.Parameters))
         {
             Coefficients = [o.Coefficients[0], o.Beta, .. o.Coefficients[1..]],
-            Form = ScalingForms.PowerLawWithOffset,
+            Form = ScalingForm.PowerLawWithOffset,
             Corrections = o.Parameters - 4,
             Parameters = o.Parameters,
             Offset = new Estimate(o.Coefficients[1], o.CoefficientSe[1]),
         };
-
-    private static (string Verdict, string Evidence) Judge(Estimate beta, Interval ci, int runs)
-    {
-        var text = string.Create(System.Globalization.CultureInfo.InvariantCulture,
-            $"exponent β = {beta.Value:F3} (95% interval {ci.Low:F3} to {ci.High:F3}) from {runs} runs");
-        if (!double.IsFinite(ci.Width) || ci.Width > InformativeWidth)
-        {
-            return ("undetermined", text + "; the interval is too wide to tell the kind of onset: add runs closer to onset");
-        }
-
-        // β = ½ is supported when the interval reaches ½ ± EquivalenceMargin: the margin absorbs the higher-order
-        // terms of the law that a few runs cannot resolve (common practice, no source).
-        return ci.Low <= 0.5 + EquivalenceMargin && ci.High >= 0.5 - EquivalenceMargin
-            ? ("saddle-node-on-circle", text + "; consistent with β = ½ of a saddle-node on the circle")
-            : ("undetermined", text + "; excludes β = ½: not the square-root law of a saddle-node on the circle, or runs too far from onset");
-    }
 
     /// <summary>One fitted form: μc, β and their errors, residual degrees of freedom and AICc.</summary>
     internal readonly record struct Solution(double MuC, double Beta, double BetaSe, double MuCSe, double Kappa, int Dof, double Aicc)
@@ -221,7 +208,7 @@ public static class ScalingFit
 
         public double[] Coefficients { get; init; } = [];
 
-        public string Form { get; init; } = ScalingForms.PowerLaw;
+        public ScalingForm Form { get; init; } = ScalingForm.PowerLaw;
 
         public Estimate? Offset { get; init; }
     }

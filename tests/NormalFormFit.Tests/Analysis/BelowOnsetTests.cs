@@ -31,7 +31,7 @@ public class BelowOnsetTests(ITestOutputHelper output)
         foreach (var r in report.Runs)
         {
             output.WriteLine($"{r.Param}: κ = {r.Relaxation?.Rate} window {r.Relaxation?.Window}");
-            Assert.Contains(RunFlags.NotTurning, r.Flags);
+            Assert.Contains(RunFlag.NotTurning, r.Flags);
             Assert.Null(r.Period);
             Assert.NotNull(r.Relaxation);
 
@@ -87,7 +87,7 @@ public class BelowOnsetTests(ITestOutputHelper output)
         var rest = new RestingPendulum(0.25);
         runs.Add(SimulatedSet.AnalyzeOne(PlanarSimulator.Run(rest, new SimulationOptions { Mu = 0.5, Revolutions = 5, SamplingInterval = 0.02, MeasurementNoise = 0.01, MaxDuration = 100, Seed = 9 })));
         var report = OnsetAnalysis.Combine(runs);
-        Assert.Contains(RunFlags.Bistable, report.Runs[^1].Flags);
+        Assert.Contains(RunFlag.Bistable, report.FlagsOf(report.Runs[^1]));
         Assert.True(report.FromPeriod.IsAvailable);
         Assert.Contains(report.Diagnostics, d => d.Code == "bistable");
     }

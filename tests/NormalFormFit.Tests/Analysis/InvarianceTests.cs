@@ -42,7 +42,7 @@ public class InvarianceTests
         var r = Analyze(Run.Time, Run.Phase);
         var diff = Math.Abs(r.Period!.FromField.Value - r.Period.Measured.Value);
         Assert.True(diff < 3 * Math.Sqrt(Math.Pow(r.Period.FromField.StandardError, 2) + Math.Pow(r.Period.Measured.StandardError, 2)) + (0.005 * r.Period.Measured.Value));
-        Assert.DoesNotContain(RunFlags.FieldPeriodMismatch, r.Flags);
+        Assert.DoesNotContain(RunFlag.FieldPeriodMismatch, r.Flags);
     }
 
     [Fact]

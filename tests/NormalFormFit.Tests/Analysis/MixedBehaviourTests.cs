@@ -59,7 +59,7 @@ public class MixedBehaviourTests(ITestOutputHelper output)
         var run = Stitched((1.1, 8, 1e4), (0.9, 100, 80));
         Show(run);
 
-        Assert.Contains(RunFlags.MixedBehaviour, run.Flags);
+        Assert.Contains(RunFlag.MixedBehaviour, run.Flags);
         var warning = Assert.Single(run.Diagnostics, d => d.Code == "mixed-behaviour");
         Assert.Equal(Severity.Warning, warning.Severity);
         Assert.Equal("stitched.csv", warning.File);
@@ -68,11 +68,11 @@ public class MixedBehaviourTests(ITestOutputHelper output)
     [Fact]
     public void RunThatRestsThenTurns_IsFlaggedMixedBehaviour()
     {
-        // The reverse (RunFlags.MixedBehaviour: "or the reverse"): at rest at μ = 0.9 for 80, then eight turns at 1.1.
+        // The reverse (RunFlag.MixedBehaviour: "or the reverse"): at rest at μ = 0.9 for 80, then eight turns at 1.1.
         var run = Stitched((0.9, 100, 80), (1.1, 8, 1e4));
         Show(run);
 
-        Assert.Contains(RunFlags.MixedBehaviour, run.Flags);
+        Assert.Contains(RunFlag.MixedBehaviour, run.Flags);
         Assert.Single(run.Diagnostics, d => d.Code == "mixed-behaviour");
     }
 
@@ -84,7 +84,7 @@ public class MixedBehaviourTests(ITestOutputHelper output)
         Show(run);
 
         Assert.True(run.Duration > 180);
-        Assert.DoesNotContain(RunFlags.MixedBehaviour, run.Flags);
+        Assert.DoesNotContain(RunFlag.MixedBehaviour, run.Flags);
         Assert.DoesNotContain(run.Diagnostics, d => d.Code == "mixed-behaviour");
     }
 
@@ -95,7 +95,7 @@ public class MixedBehaviourTests(ITestOutputHelper output)
         var run = Stitched((1.1, 8, 1e4), (1.01, 3, 1e4));
         Show(run);
 
-        Assert.DoesNotContain(RunFlags.MixedBehaviour, run.Flags);
+        Assert.DoesNotContain(RunFlag.MixedBehaviour, run.Flags);
     }
 
     [Fact]
@@ -123,6 +123,6 @@ public class MixedBehaviourTests(ITestOutputHelper output)
         Show(run);
 
         Assert.True(run.IsTurning);
-        Assert.DoesNotContain(RunFlags.MixedBehaviour, run.Flags);
+        Assert.DoesNotContain(RunFlag.MixedBehaviour, run.Flags);
     }
 }

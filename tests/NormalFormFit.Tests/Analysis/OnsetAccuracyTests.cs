@@ -1,3 +1,4 @@
+using NormalFormFit.Reporting;
 using NormalFormFit.Simulation;
 using Xunit.Abstractions;
 
@@ -22,7 +23,7 @@ public class OnsetAccuracyTests(ITestOutputHelper output)
         var t = report.FromPeriod;
         output.WriteLine($"bottleneck {a.Value} ± {a.StandardError} [{a.Ci95.Low}, {a.Ci95.High}] deg {a.Trend?.Degree}");
         output.WriteLine($"period {t.Value} ± {t.StandardError} [{t.Ci95.Low}, {t.Ci95.High}] deg {t.Trend?.Degree}");
-        output.WriteLine($"scaling {report.Scaling?.Exponent} {report.Scaling?.Ci95} {report.Scaling?.Verdict}");
+        output.WriteLine($"scaling {report.Scaling?.Exponent} {report.Scaling?.Ci95} {report.Verdict.Kind}");
 
         // Accuracy bound set by the requirement: |μc − 1| ≤ 2·10⁻³ (common practice, no source: a tenth of the closest run's distance).
         Assert.InRange(a.Value, 0.998, 1.002);
@@ -44,6 +45,6 @@ public class ThetaNeuronAccuracyTests
         Assert.InRange(report.FromPeriod.Value, -0.002, 0.002);
         Assert.True(report.FromBottleneck.Ci95.Contains(0.0));
         Assert.True(report.FromPeriod.Ci95.Contains(0.0));
-        Assert.Equal("saddle-node-on-circle", report.Scaling!.Verdict);
+        Assert.Equal("saddle-node-on-circle", WireNames.Of(report.Verdict.Kind));
     }
 }

@@ -51,8 +51,8 @@ public class PhaseDiffusionTests(ITestOutputHelper output)
             Assert.InRange(r.Noise!.Diffusion.Value, (0.85 * d) - (4 * r.Noise.Diffusion.StandardError), (1.15 * d) + (4 * r.Noise.Diffusion.StandardError));
         }
 
-        Assert.Contains(RunFlags.NoiseDominated, report.Runs[0].Flags);
-        Assert.DoesNotContain(RunFlags.NoiseDominated, report.Runs[^1].Flags);
+        Assert.Contains(RunFlag.NoiseDominated, report.Runs[0].Flags);
+        Assert.DoesNotContain(RunFlag.NoiseDominated, report.Runs[^1].Flags);
         Assert.Contains(report.Diagnostics, x => x.Code == "noise-dominated-runs");
         var used = report.FromBottleneck.Runs;
         Assert.True(used < Mus.Length, "noise-dominated runs must be left out of the bottleneck route");
@@ -66,7 +66,7 @@ public class PhaseDiffusionTests(ITestOutputHelper output)
         foreach (var r in report.Runs)
         {
             output.WriteLine($"{r.Param}: D = {r.Noise?.Diffusion} σ = {r.Noise?.MeasurementSd}");
-            Assert.DoesNotContain(RunFlags.NoiseDominated, r.Flags);
+            Assert.DoesNotContain(RunFlag.NoiseDominated, r.Flags);
 
             // σ from the intercept 6σ² of the second-difference variance: within 10% of the simulated 0.01.
             Assert.InRange(r.Noise!.MeasurementSd, 0.009, 0.011);

@@ -26,7 +26,7 @@ public class EventAccuracyTests(ITestOutputHelper output)
                 Seed = GaussianSource.DeriveSeed(seed, i),
             });
             var spikes = CameraView.CrossingTimes(sim.Time, sim.TruePhase, Math.PI);
-            var rec = new RunRecording(RecordingKind.Events, null, null, new EventRecording($"s{i}", spikes, [0]));
+            var rec = new EventRecording($"s{i}", spikes, [0]);
             runs[i] = RecordingAnalyzer.Analyze(rec, Mus[i], $"s{i}", null, null, []).Value!;
         }
 

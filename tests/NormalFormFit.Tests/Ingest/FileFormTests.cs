@@ -27,8 +27,9 @@ public class FileFormTests
         var r = Read(text);
         Assert.True(r.Succeeded, form + ": " + string.Join("; ", r.Diagnostics));
         Assert.Equal(RecordingKind.Phase, r.Value!.Kind);
-        Assert.Equal([0, 0.25, 0.5], r.Value.Phase!.Time);
-        Assert.Equal([0.5, 1.5, -3], r.Value.Phase.Phase);
+        var phase = Assert.IsType<PhaseRecording>(r.Value);
+        Assert.Equal([0, 0.25, 0.5], phase.Time);
+        Assert.Equal([0.5, 1.5, -3], phase.Phase);
     }
 
     [Fact]
@@ -60,14 +61,14 @@ public class FileFormTests
         var r = Read($"t,theta\n{comment}\n0,0.5\n0.25,1.5\n0.5,-3\n");
 
         Assert.True(r.Succeeded, string.Join("; ", r.Diagnostics));
-        Assert.Equal([0, 0.25, 0.5], r.Value!.Phase!.Time);
+        Assert.Equal([0, 0.25, 0.5], Assert.IsType<PhaseRecording>(r.Value).Time);
     }
 
     [Fact]
     public void PhaseInDegreesAndTurns_IsConvertedToRadians()
     {
-        var deg = Read("t,theta\n0,90\n1,180\n", new RunReadOptions { PhaseUnit = PhaseUnit.Degrees }).Value!.Phase!.Phase;
-        var turns = Read("t,theta\n0,0.25\n1,0.5\n", new RunReadOptions { PhaseUnit = PhaseUnit.Turns }).Value!.Phase!.Phase;
+        var deg = Assert.IsType<PhaseRecording>(Read("t,theta\n0,90\n1,180\n", new RunReadOptions { PhaseUnit = PhaseUnit.Degrees }).Value).Phase;
+        var turns = Assert.IsType<PhaseRecording>(Read("t,theta\n0,0.25\n1,0.5\n", new RunReadOptions { PhaseUnit = PhaseUnit.Turns }).Value).Phase;
         Assert.Equal(Math.PI / 2, deg[0], 15);
         Assert.Equal(Math.PI, deg[1], 15);
         Assert.Equal(Math.PI / 2, turns[0], 15);
@@ -78,8 +79,8 @@ public class FileFormTests
     public void UnwrappedPhase_WithStepsAboveHalfATurn_IsKeptAsRecordedWhenSaidToBeUnwrapped()
     {
         var text = "t,theta\n0,0\n1,4\n2,8\n3,12\n";
-        var asWrapped = Trajectory.FromRecording(Read(text).Value!.Phase!);
-        var asUnwrapped = Trajectory.FromRecording(Read(text, new RunReadOptions { PhaseUnwrapped = true }).Value!.Phase!);
+        var asWrapped = Trajectory.FromRecording(Assert.IsType<PhaseRecording>(Read(text).Value));
+        var asUnwrapped = Trajectory.FromRecording(Assert.IsType<PhaseRecording>(Read(text, new RunReadOptions { PhaseUnwrapped = true }).Value));
         Assert.Equal([0, 4, 8, 12], asUnwrapped.Phase);
         Assert.NotEqual(12, asWrapped.Phase[^1], 6);
     }
@@ -91,7 +92,7 @@ public class FileFormTests
         Assert.Equal(RecordingKind.Events, Read("spike_time\n0.1\n0.7\n").Value!.Kind);
         Assert.Equal(RecordingKind.Events, Read("0.1\n0.7\n").Value!.Kind);
         Assert.Equal(RecordingKind.Positions, Read("frame_t,cx,cy\n0,1,2\n", new RunReadOptions { TimeColumn = "frame_t", XColumn = "cx", YColumn = "cy" }).Value!.Kind);
-        Assert.Equal([0.1, 0.7], Read("t,channel\n0.1,3\n0.7,3\n", new RunReadOptions { Kind = RecordingKind.Events }).Value!.Events!.Times);
+        Assert.Equal([0.1, 0.7], Assert.IsType<EventRecording>(Read("t,channel\n0.1,3\n0.7,3\n", new RunReadOptions { Kind = RecordingKindOption.Events }).Value).Times);
     }
 
     [Fact]
@@ -105,7 +106,7 @@ public class FileFormTests
         }
 
         var r = Read(sb.ToString());
-        Assert.Equal([0, 30, 59], r.Value!.Positions!.SegmentStarts);
+        Assert.Equal([0, 30, 59], Assert.IsType<PositionRecording>(r.Value).SegmentStarts);
         Assert.Contains(r.Diagnostics, d => d.Code == "large-gaps" && d.Severity == Severity.Warning);
     }
 
@@ -113,7 +114,7 @@ public class FileFormTests
     public void ExplicitDecimalComma_ReadsCommaDecimals()
     {
         var r = Read("t;theta\n0;0,5\n1;1,5\n", new RunReadOptions { DecimalComma = true });
-        Assert.Equal([0.5, 1.5], r.Value!.Phase!.Phase);
+        Assert.Equal([0.5, 1.5], Assert.IsType<PhaseRecording>(r.Value).Phase);
         Assert.DoesNotContain(r.Diagnostics, d => d.Code == "decimal-comma");
     }
 }

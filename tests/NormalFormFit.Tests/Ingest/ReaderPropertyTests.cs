@@ -73,7 +73,7 @@ public class ReaderPropertyTests
 
     private static void Check(byte[] bytes, bool analyse)
     {
-        foreach (var kind in new[] { RecordingKind.Auto, RecordingKind.Phase, RecordingKind.Positions, RecordingKind.Events })
+        foreach (var kind in Enum.GetValues<RecordingKindOption>())
         {
             using var stream = new MemoryStream(bytes, writable: false);
             var loaded = RunReader.ReadRecording(stream, "fuzz.csv", new RunReadOptions { Kind = kind });
@@ -83,8 +83,13 @@ public class ReaderPropertyTests
                 continue;
             }
 
-            var time = rec.Phase?.Time ?? rec.Positions?.Time ?? rec.Events!.Times;
-            var segments = rec.Phase?.SegmentStarts ?? rec.Positions?.SegmentStarts ?? rec.Events!.SegmentStarts;
+            var (time, segments) = rec switch
+            {
+                PhaseRecording p => (p.Time, p.SegmentStarts),
+                PositionRecording p => (p.Time, p.SegmentStarts),
+                EventRecording e => (e.Times, e.SegmentStarts),
+                _ => throw new InvalidOperationException($"a recording of kind {rec.Kind} the test does not know"),
+            };
             Assert.NotEmpty(time);
             Assert.All(time, t => Assert.True(double.IsFinite(t)));
             for (var i = 1; i < time.Length; i++)

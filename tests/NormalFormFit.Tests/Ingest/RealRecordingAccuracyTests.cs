@@ -1,5 +1,6 @@
 using NormalFormFit.Analysis;
 using NormalFormFit.Ingest;
+using NormalFormFit.Reporting;
 using NormalFormFit.Simulation;
 using Xunit.Abstractions;
 
@@ -34,7 +35,7 @@ public class RealRecordingAccuracyTests(ITestOutputHelper output)
         Assert.True(a.Ci95.Contains(1.0), $"bottleneck interval [{a.Ci95.Low}, {a.Ci95.High}] misses 1");
         Assert.All(report.Runs, r =>
         {
-            Assert.Equal("positions", r.InputKind);
+            Assert.Equal("positions", WireNames.Of(r.InputKind));
             Assert.NotNull(r.Orbit);
             Assert.True(r.Orbit!.IsEllipse);
             // A circle of R = 200 px at 50° tilt: semi-axes 200 and 200·cos 50° = 128.6 px; the major axis lies along

@@ -33,9 +33,8 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
                 W = [.. clean.W.Select(w => w + (5e-4 * noise.Next()))],
             };
             var name = $"ml{i}";
-            positions[i] = new RunRecording(RecordingKind.Positions, null,
-                new PositionRecording(name, track.Time, track.V, track.W, [0], YDown: false), null);
-            spikes[i] = new RunRecording(RecordingKind.Events, null, null, new EventRecording(name, SpikeTimes(clean), [0]));
+            positions[i] = new PositionRecording(name, track.Time, track.V, track.W, [0], YDown: false);
+            spikes[i] = new EventRecording(name, SpikeTimes(clean), [0]);
         }
 
         return (onset, positions, spikes, currents);
@@ -61,7 +60,7 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
     public void Onset_FromMorrisLecarPositions_IsWithinTwoPercentOfSpan()
     {
         var (onset, positions, _, currents) = Runs.Value;
-        var runs = positions.Select((p, i) => RecordingAnalyzer.Analyze(p, currents[i], p.Positions!.File, null, null, []).Value!).ToList();
+        var runs = positions.Select((p, i) => RecordingAnalyzer.Analyze(p, currents[i], p.File, null, null, []).Value!).ToList();
         var report = OnsetAnalysis.Combine(runs);
         Log(onset, report);
         var span = currents[^1] - currents[0];
@@ -70,9 +69,9 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
         // span (the polynomial in T⁻² was 0.031 off); 0.1% leaves a factor five.
         Assert.InRange(Math.Abs(report.FromBottleneck.Value - onset), 0, 0.02 * span);
         Assert.InRange(Math.Abs(report.FromPeriod.Value - onset), 0, 0.001 * span);
-        Assert.Equal(OnsetLaws.SquareRootWithOffset, report.FromPeriod.Curve?.Law);
+        Assert.Equal(OnsetLaw.SquareRootWithOffset, report.FromPeriod.Curve?.Law);
         // The (V, w) orbit is not an ellipse: the phase is a protophase and the report says so.
-        Assert.All(report.Runs, r => Assert.Contains(RunFlags.NotAnEllipse, r.Flags));
+        Assert.All(report.Runs, r => Assert.Contains(RunFlag.NotAnEllipse, r.Flags));
         Assert.All(report.Runs, r => Assert.Contains(r.Diagnostics, d => d.Code == "not-an-ellipse" && d.Message.Contains("protophase", StringComparison.Ordinal)));
     }
 
@@ -80,14 +79,14 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
     public void Onset_FromMorrisLecarSpikeTimes_IsWithinTwoPercentOfSpanByThePeriodRoute()
     {
         var (onset, _, spikes, currents) = Runs.Value;
-        var runs = spikes.Select((p, i) => RecordingAnalyzer.Analyze(p, currents[i], p.Events!.File, null, null, []).Value!).ToList();
+        var runs = spikes.Select((p, i) => RecordingAnalyzer.Analyze(p, currents[i], p.File, null, null, []).Value!).ToList();
         var report = OnsetAnalysis.Combine(runs);
         Log(onset, report);
         var span = currents[^1] - currents[0];
         Assert.False(report.FromBottleneck.IsAvailable);
         Assert.Contains(report.Diagnostics, d => d.Code == "bottleneck-not-available");
         Assert.InRange(Math.Abs(report.FromPeriod.Value - onset), 0, 0.001 * span);
-        Assert.Equal(OnsetLaws.SquareRootWithOffset, report.FromPeriod.Curve?.Law);
+        Assert.Equal(OnsetLaw.SquareRootWithOffset, report.FromPeriod.Curve?.Law);
         Assert.True(double.IsFinite(report.FromPeriod.Ci95.Low) && double.IsFinite(report.FromPeriod.Ci95.High));
 
         // The interval misses the onset here (see the skipped test below); the report must say that the law does not
@@ -96,8 +95,8 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
 
         // Spike times alone still tell the kind of onset: Morris–Lecar with this set is class I, a saddle-node on the
         // invariant circle (Rinzel & Ermentrout 1998, from memory), and the periods' exponent and laws say so.
-        Assert.Equal(NormalFormFit.Scaling.OnsetKinds.SaddleNodeOnCircle, report.Scaling?.Verdict);
-        Assert.Contains("event times carry no phase velocity", report.Scaling!.Evidence, StringComparison.Ordinal);
+        Assert.Equal(NormalFormFit.Scaling.OnsetKind.SaddleNodeOnCircle, report.Verdict.Kind);
+        Assert.Contains("event times carry no phase velocity", report.Verdict.Evidence, StringComparison.Ordinal);
     }
 
     /// <summary>
@@ -114,7 +113,7 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
     {
         var (onset, positions, spikes, currents) = Runs.Value;
         var runs = (spikeTimes ? spikes : positions)
-            .Select((p, i) => RecordingAnalyzer.Analyze(p, currents[i], p.Events?.File ?? p.Positions!.File, null, null, []).Value!).ToList();
+            .Select((p, i) => RecordingAnalyzer.Analyze(p, currents[i], p.File, null, null, []).Value!).ToList();
         var report = OnsetAnalysis.Combine(runs);
         Log(onset, report);
         Assert.True(report.FromPeriod.Ci95.Contains(onset));
@@ -133,6 +132,6 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
             output.WriteLine($"{e.Route}: {e.Value} ± {e.StandardError} [{e.Ci95.Low}, {e.Ci95.High}] runs {e.Runs}");
         }
 
-        output.WriteLine($"kind of onset: {report.Scaling?.Verdict}: {report.Scaling?.Evidence}");
+        output.WriteLine($"kind of onset: {report.Verdict.Kind}: {report.Verdict.Evidence}");
     }
 }

@@ -23,7 +23,7 @@ public class NextMeasurementTests(ITestOutputHelper output)
             var template = new SimulationOptions { Revolutions = 5, SamplingInterval = 0.02, MeasurementNoise = 0.01, Seed = 100 + seed };
             var runs = FarRuns.Select((mu, i) => Run(mu, template, i)).ToList();
             var before = OnsetAnalysis.Combine(runs);
-            var plan = before.NextMeasurements.Single(m => m.Route == "bottleneck");
+            var plan = before.NextMeasurements.Single(m => m.Route == OnsetRoute.Bottleneck);
             var added = Enumerable.Range(0, plan.Runs).Select(k => Run(plan.Param, template, 50 + k)).ToList();
             var after = OnsetAnalysis.Combine([.. runs, .. added]);
             var far = Enumerable.Range(0, plan.Runs).Select(k => Run(FarRuns[^1], template, 80 + k)).ToList();

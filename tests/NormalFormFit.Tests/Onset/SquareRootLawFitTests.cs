@@ -121,7 +121,7 @@ public class SquareRootLawFitTests(ITestOutputHelper output)
         double[] distances = [0.01, 0.02, 0.04, 0.07, 0.1, 0.15, 0.2, 0.3];
         var withOffset = distances.Select((d, i) => ToPoint(1.0 + d, ((0.5 / Math.Sqrt(d)) + 4.0) * (1 + (1e-4 * ((i % 3) - 1))), 1e-4)).ToList();
         var e = PeriodRoute.Estimate(withOffset);
-        Assert.Equal(OnsetLaws.SquareRootWithOffset, e.Curve!.Law);
+        Assert.Equal(OnsetLaw.SquareRootWithOffset, e.Curve!.Law);
         Assert.Null(e.Trend);
         Assert.Contains(e.Diagnostics, d => d.Code == "period-law-offset");
         Assert.True(e.Ci95.Contains(1.0));
@@ -130,7 +130,7 @@ public class SquareRootLawFitTests(ITestOutputHelper output)
         // The rotor's T⁻² = (μ² − 1)/4π² (Adler 1946) is a quadratic in μ: the polynomial stays.
         var rotor = distances.Select((d, i) => ToPoint(1.0 + d, 2 * Math.PI / Math.Sqrt(((1 + d) * (1 + d)) - 1) * (1 + (1e-4 * ((i % 3) - 1))), 1e-4)).ToList();
         var p = PeriodRoute.Estimate(rotor);
-        Assert.Equal(OnsetLaws.Polynomial, p.Curve!.Law);
+        Assert.Equal(OnsetLaw.Polynomial, p.Curve!.Law);
         Assert.Equal(2, p.Trend!.Degree);
     }
 

@@ -43,7 +43,7 @@ public class TrendFitTests
     {
         // y = 2(μ − 0.3) with tiny noise-free errors: the root is 0.3 (exact algebra, common practice, no source).
         var pts = new[] { 0.31, 0.35, 0.4, 0.5, 0.6 }.Select(m => new TrendPoint(m, 2 * (m - 0.3), 1e-3)).ToList();
-        var e = TrendFit.Root("test", pts, allowCurvature: false);
+        var e = TrendFit.Root(OnsetRoute.Bottleneck, pts, allowCurvature: false);
         Assert.Equal(0.3, e.Value, 12);
         Assert.True(e.Ci95.Width < 1e-9);
     }
@@ -54,7 +54,7 @@ public class TrendFitTests
         // A flat trend with scatter: Fieller's interval is then the whole line or two half-lines (Fieller 1954).
         var pts = new[] { (1.0, 0.5), (1.1, 0.3), (1.2, 0.6), (1.3, 0.35), (1.4, 0.55) }
             .Select(p => new TrendPoint(p.Item1, p.Item2, 0.1)).ToList();
-        var e = TrendFit.Root("test", pts, allowCurvature: false);
+        var e = TrendFit.Root(OnsetRoute.Bottleneck, pts, allowCurvature: false);
         Assert.True(double.IsInfinity(e.Ci95.Low) || double.IsInfinity(e.Ci95.High) || !e.IsAvailable);
         Assert.Contains(e.Diagnostics, d => d.Code is "unbounded-interval" or "no-root");
     }
@@ -62,7 +62,7 @@ public class TrendFitTests
     [Fact]
     public void Root_WithFewerThanThreeRuns_IsNotAvailableWithAReason()
     {
-        var e = TrendFit.Root("period", [new TrendPoint(1, 1, 0.1), new TrendPoint(2, 2, 0.1)]);
+        var e = TrendFit.Root(OnsetRoute.Period, [new TrendPoint(1, 1, 0.1), new TrendPoint(2, 2, 0.1)]);
         Assert.False(e.IsAvailable);
         Assert.Equal("too-few-runs", Assert.Single(e.Diagnostics).Code);
     }
@@ -73,7 +73,7 @@ public class TrendFitTests
         // T⁻² of the rotor is (μ² − 1)/4π² (Adler 1946): curved in μ, root at μ = 1.
         var mus = new[] { 1.01, 1.02, 1.04, 1.07, 1.1, 1.15, 1.2, 1.3 };
         var pts = mus.Select((m, i) => new TrendPoint(m, ((m * m) - 1) / (4 * Math.PI * Math.PI) * (1 + (1e-4 * ((i % 3) - 1))), 1e-5)).ToList();
-        var e = TrendFit.Root("period", pts);
+        var e = TrendFit.Root(OnsetRoute.Period, pts);
         Assert.Equal(2, e.Trend!.Degree);
         Assert.Equal(1.0, e.Value, 3);
         Assert.True(e.Ci95.Contains(1.0));

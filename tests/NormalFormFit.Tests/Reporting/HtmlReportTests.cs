@@ -54,7 +54,7 @@ public class HtmlReportTests
         Assert.Contains(ReportNumbers.Interval(r.FromBottleneck.Ci95, r.FromBottleneck.StandardError), html, StringComparison.Ordinal);
         Assert.Contains(ReportNumbers.Interval(r.FromPeriod.Ci95, r.FromPeriod.StandardError), html, StringComparison.Ordinal);
         Assert.Contains(r.Agreement.Consistent ? "The two routes agree" : "The two routes disagree", html, StringComparison.Ordinal);
-        Assert.Contains("Kind of onset: " + r.Scaling!.Verdict, html, StringComparison.Ordinal);
+        Assert.Contains("Kind of onset: " + WireNames.Of(r.Verdict.Kind), html, StringComparison.Ordinal);
     }
 
     [Fact]

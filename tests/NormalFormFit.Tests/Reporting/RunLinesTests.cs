@@ -21,7 +21,7 @@ public sealed partial class RunLinesTests : IDisposable
     [Fact]
     public void NonFiniteNumbers_AreWrittenAsNull_AndReadBackAsNaN()
     {
-        var run = new RunResult("a.csv", 1.5, null, 10, double.PositiveInfinity, double.NaN, 1, null, null, null, null, [RunFlags.NotTurning], []);
+        var run = new RunResult("a.csv", 1.5, null, 10, double.PositiveInfinity, double.NaN, 1, null, null, null, null, [RunFlag.NotTurning], []);
 
         var text = WriteLines(run);
         var back = Assert.Single(RunLines.Read([Save(text)]).Value!.Runs);
@@ -79,7 +79,7 @@ public sealed partial class RunLinesTests : IDisposable
     }
 
     private static RunResult Resting() =>
-        new("rest.csv", 0.9, "at rest", 100, 2.0, 0.01, 1, null, null, null, null, [RunFlags.NotTurning], [new Diagnostic(Severity.Info, "note", "a note", "rest.csv", 3)]);
+        new("rest.csv", 0.9, "at rest", 100, 2.0, 0.01, 1, null, null, null, null, [RunFlag.NotTurning], [new Diagnostic(Severity.Info, "note", "a note", "rest.csv", 3)]);
 
     private static string WriteLines(params RunResult[] runs)
     {

@@ -33,11 +33,11 @@ public class OnsetKindTests(ITestOutputHelper output)
         var theta = SimulatedSet.Analyze(BuiltInModels.ThetaNeuron, [0.005, 0.01, 0.02, 0.04, 0.07, 0.1, 0.15, 0.2], Template with { Seed = seed });
         foreach (var report in new[] { rotor, theta })
         {
-            output.WriteLine(report.Scaling?.Evidence);
-            Assert.Equal(OnsetKinds.SaddleNodeOnCircle, report.Scaling?.Verdict);
-            Assert.Equal(RouteStatus.Applicable, report.FromBottleneck.Status);
-            Assert.True(report.Scaling!.Weights!.SaddleNode >= OnsetKind.DecisiveWeight);
-            Assert.True(report.Scaling.MinimumSpeed!.ReachesZero);
+            output.WriteLine(report.Verdict.Evidence);
+            Assert.Equal(OnsetKind.SaddleNodeOnCircle, report.Verdict.Kind);
+            Assert.Equal(RouteStatus.Applicable, report.Verdict.RouteStatus);
+            Assert.True(report.Verdict.Weights!.SaddleNode >= OnsetKindDecision.DecisiveWeight);
+            Assert.True(report.Verdict.MinimumSpeed!.ReachesZero);
         }
     }
 
@@ -53,15 +53,15 @@ public class OnsetKindTests(ITestOutputHelper output)
         // Distances from 10⁻⁴ to 10⁻¹: the period grows by −(1/λ)ln d, λ ≈ 0.86, i.e. by about 8 time units over the range.
         double[] ds = [1e-4, 3e-4, 1e-3, 3e-3, 0.01, 0.03, 0.1];
         var report = PlanarSet.Analyze(new DampedPendulum(gamma), ds.Select(d => tauC + d).ToList(), Template with { Seed = seed });
-        output.WriteLine(report.Scaling?.Evidence);
-        Assert.Equal(OnsetKinds.Homoclinic, report.Scaling?.Verdict);
-        Assert.Equal(RouteStatus.Unreliable, report.FromBottleneck.Status);
-        Assert.False(string.IsNullOrEmpty(report.FromBottleneck.StatusReason));
+        output.WriteLine(report.Verdict.Evidence);
+        Assert.Equal(OnsetKind.Homoclinic, report.Verdict.Kind);
+        Assert.Equal(RouteStatus.Unreliable, report.Verdict.RouteStatus);
+        Assert.False(string.IsNullOrEmpty(report.Verdict.RouteStatusReason));
         Assert.Contains("unreliable", TextFormat(report), StringComparison.Ordinal);
 
         // The logarithmic law's onset is within half the nearest run's distance (5·10⁻⁵) of the shooting reference:
         // the O(d ln d) corrections of the law shift it by a fraction of d_min (common practice, no source).
-        var log = report.Scaling!.Weights!.Fits.Single(f => f.Law == "homoclinic");
+        var log = report.Verdict.Weights!.Fits.Single(f => f.Law == PeriodLaw.Homoclinic);
         Assert.InRange(log.Onset, tauC - 5e-5, tauC + 5e-5);
     }
 
@@ -73,11 +73,10 @@ public class OnsetKindTests(ITestOutputHelper output)
     {
         // Stuart–Landau: period 2π/(ω − cμ) finite at μc = 0 (Kuramoto 1984, §2.2); ω = 1, c = −1.
         var report = PlanarSet.Analyze(new StuartLandau(1.0, -1.0), [0.02, 0.04, 0.07, 0.1, 0.15, 0.2, 0.3], Template with { Seed = seed });
-        output.WriteLine(report.Scaling?.Evidence);
-        Assert.Equal(OnsetKinds.FinitePeriod, report.Scaling?.Verdict);
-        Assert.Equal(RouteStatus.NotApplicable, report.FromBottleneck.Status);
-        Assert.Equal(RouteStatus.NotApplicable, report.FromPeriod.Status);
-        Assert.False(report.Scaling!.MinimumSpeed!.ReachesZero);
+        output.WriteLine(report.Verdict.Evidence);
+        Assert.Equal(OnsetKind.FinitePeriod, report.Verdict.Kind);
+        Assert.Equal(RouteStatus.NotApplicable, report.Verdict.RouteStatus);
+        Assert.False(report.Verdict.MinimumSpeed!.ReachesZero);
     }
 
     [Fact]
@@ -87,8 +86,8 @@ public class OnsetKindTests(ITestOutputHelper output)
         // the square-root law: its local exponent d ln T/d ln(1/(μ − 1)) = ½ + ½(μ − 1)/(μ + 1) is 0.60–0.68 at μ = 1.5–2.1,
         // so β excludes ½ and no kind may be declared.
         var report = SimulatedSet.Analyze(BuiltInModels.Rotor, [1.5, 1.7, 1.9, 2.1], Template with { Seed = 4, Revolutions = 3, MeasurementNoise = 0.05 });
-        output.WriteLine(report.Scaling?.Evidence);
-        Assert.Equal(OnsetKinds.Undetermined, report.Scaling?.Verdict);
+        output.WriteLine(report.Verdict.Evidence);
+        Assert.Equal(OnsetKind.Undetermined, report.Verdict.Kind);
         Assert.True(report.Scaling!.Ci95.Low > 0.5 + ScalingFit.EquivalenceMargin);
     }
 

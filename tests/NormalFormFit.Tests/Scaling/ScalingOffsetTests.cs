@@ -42,7 +42,7 @@ public class ScalingOffsetTests(ITestOutputHelper output)
         // 1e-4 relative for the errors, because SciPy's Jacobian is a finite difference ("2-point") and ours analytic.
         var r = Reference();
         var e = r.GetProperty(key);
-        var fit = ScalingFit.Candidates(ReferencePoints(r)).Single(c => c.Form == ScalingForms.PowerLawWithOffset && c.Corrections == corrections);
+        var fit = ScalingFit.Candidates(ReferencePoints(r)).Single(c => c.Form == ScalingForm.PowerLawWithOffset && c.Corrections == corrections);
         output.WriteLine($"β {fit.Beta:R} ± {fit.BetaSe:R}; μc {fit.MuC:R} ± {fit.MuCSe:R}; coefficients {string.Join(", ", fit.Coefficients)}");
 
         Assert.Equal(e.GetProperty("beta").GetDouble(), fit.Beta, 1e-6 * fit.Beta);
@@ -65,8 +65,8 @@ public class ScalingOffsetTests(ITestOutputHelper output)
         var all = ScalingFit.Candidates(ReferencePoints(r));
         string[] keys = ["log0", "log1", "log2", "offset", "offset_linear"];
         var ours = keys.Select(k => all.Single(c => k.StartsWith("log", StringComparison.Ordinal)
-            ? c.Form == ScalingForms.PowerLaw && c.Corrections == k[3] - '0'
-            : c.Form == ScalingForms.PowerLawWithOffset && c.Corrections == (k == "offset" ? 0 : 1)).Aicc).ToArray();
+            ? c.Form == ScalingForm.PowerLaw && c.Corrections == k[3] - '0'
+            : c.Form == ScalingForm.PowerLawWithOffset && c.Corrections == (k == "offset" ? 0 : 1)).Aicc).ToArray();
         var theirs = keys.Select(k => r.GetProperty(k).GetProperty("aicc_full").GetDouble()).ToArray();
         for (var i = 0; i < keys.Length; i++)
         {
@@ -80,7 +80,7 @@ public class ScalingOffsetTests(ITestOutputHelper output)
 
         // And the best form is the offset form, whose β interval covers ½ while the best log-T form's excludes it.
         var best = ScalingFit.Fit(ReferencePoints(r))!;
-        Assert.Equal(ScalingForms.PowerLawWithOffset, best.Form);
+        Assert.Equal(ScalingForm.PowerLawWithOffset, best.Form);
         Assert.True(best.Ci95.Contains(0.5), $"β = {best.Exponent.Value} [{best.Ci95.Low}, {best.Ci95.High}]");
     }
 
@@ -102,10 +102,10 @@ public class ScalingOffsetTests(ITestOutputHelper output)
         })];
 
         var fit = ScalingFit.Fit(pts)!;
-        var logBest = ScalingFit.Candidates(pts).Where(k => k.Form == ScalingForms.PowerLaw).MinBy(k => k.Aicc);
+        var logBest = ScalingFit.Candidates(pts).Where(k => k.Form == ScalingForm.PowerLaw).MinBy(k => k.Aicc);
         output.WriteLine($"chosen {fit.Form}: β = {fit.Exponent.Value:F4} [{fit.Ci95.Low:F4}, {fit.Ci95.High:F4}], T₀ = {fit.Offset}; best log-T form: β = {logBest.Beta:F4} ± {logBest.BetaSe:F4}");
 
-        Assert.Equal(ScalingForms.PowerLawWithOffset, fit.Form);
+        Assert.Equal(ScalingForm.PowerLawWithOffset, fit.Form);
         Assert.True(fit.Ci95.Contains(0.5));
         Assert.True(fit.Ci95.Width < ScalingFit.InformativeWidth);
         Assert.Equal(t0, fit.Offset!.Value.Value, 4 * fit.Offset.Value.StandardError);
@@ -172,13 +172,13 @@ public class ScalingOffsetTests(ITestOutputHelper output)
             if (asReported)
             {
                 var fit = ScalingFit.Fit(pts)!;
-                offsetChosen += fit.Form == ScalingForms.PowerLawWithOffset ? 1 : 0;
+                offsetChosen += fit.Form == ScalingForm.PowerLawWithOffset ? 1 : 0;
                 (beta, se, ci) = (fit.Exponent.Value, fit.Exponent.StandardError, fit.Ci95);
             }
             else
             {
                 // The interval Fit reports for this form: β ± t·se, t the 97.5% Student-t quantile on n − p degrees of freedom.
-                var off = ScalingFit.Candidates(pts).SingleOrDefault(k => k.Form == ScalingForms.PowerLawWithOffset && k.Corrections == 0);
+                var off = ScalingFit.Candidates(pts).SingleOrDefault(k => k.Form == ScalingForm.PowerLawWithOffset && k.Corrections == 0);
                 if (off.Parameters == 0)
                 {
                     continue;
@@ -208,11 +208,11 @@ public class ScalingOffsetTests(ITestOutputHelper output)
             output.WriteLine($"{k.Form} +{k.Corrections}: β = {k.Beta:F4} ± {k.BetaSe:F4}, AICc {k.Aicc:F2}");
         }
 
-        Assert.DoesNotContain(all, k => k.Form == ScalingForms.PowerLawWithOffset);
+        Assert.DoesNotContain(all, k => k.Form == ScalingForm.PowerLawWithOffset);
         var fit = ScalingFit.Fit(pts)!;
         var speed = new MinimumSpeedTrend(true, 1.0, new Interval(0.99, 1.01), pts.Length, pts.Length);
-        var (verdict, evidence) = OnsetKind.Judge(fit, PeriodLaws.Weigh(pts), speed);
-        output.WriteLine(evidence);
-        Assert.Equal(OnsetKinds.Homoclinic, verdict);
+        var verdict = OnsetKindDecision.Decide(fit, PeriodLaws.Weigh(pts), speed);
+        output.WriteLine(verdict.Evidence);
+        Assert.Equal(OnsetKind.Homoclinic, verdict.Kind);
     }
 }

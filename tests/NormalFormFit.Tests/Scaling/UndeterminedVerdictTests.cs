@@ -16,12 +16,12 @@ public class UndeterminedVerdictTests(ITestOutputHelper output)
     // and Chaos, 2nd ed., §4.3): a saddle-node on the circle at μc = 1, β = ½.
     private static double RotorPeriod(double mu) => 2 * Math.PI / Math.Sqrt((mu * mu) - 1);
 
-    private static (string Verdict, string Evidence, ScalingResult Scaling) Judge(PeriodPoint[] periods)
+    private static (OnsetKind Verdict, string Evidence, ScalingResult Scaling) Judge(PeriodPoint[] periods)
     {
         var scaling = ScalingFit.Fit(periods)!;
         var speed = new MinimumSpeedTrend(true, 1.0, new Interval(0.99, 1.01), periods.Length, periods.Length);
-        var (verdict, evidence) = OnsetKind.Judge(scaling, PeriodLaws.Weigh(periods), speed);
-        return (verdict, evidence, scaling);
+        var verdict = OnsetKindDecision.Decide(scaling, PeriodLaws.Weigh(periods), speed);
+        return (verdict.Kind, verdict.Evidence, scaling);
     }
 
     [Fact]
@@ -31,7 +31,7 @@ public class UndeterminedVerdictTests(ITestOutputHelper output)
         var (verdict, evidence, _) = Judge([.. Mus.Select(m => new PeriodPoint(m, RotorPeriod(m), 0.01 * RotorPeriod(m)))]);
         output.WriteLine(evidence);
 
-        Assert.Equal(OnsetKinds.SaddleNodeOnCircle, verdict);
+        Assert.Equal(OnsetKind.SaddleNodeOnCircle, verdict);
     }
 
     [Fact]
@@ -42,7 +42,7 @@ public class UndeterminedVerdictTests(ITestOutputHelper output)
         var (verdict, evidence, _) = Judge([.. Mus.Select(m => new PeriodPoint(m, (-Math.Log(m - 1) / 0.86) + 2, 0.01 * ((-Math.Log(m - 1) / 0.86) + 2)))]);
         output.WriteLine(evidence);
 
-        Assert.Equal(OnsetKinds.Homoclinic, verdict);
+        Assert.Equal(OnsetKind.Homoclinic, verdict);
     }
 
     [Fact]
@@ -55,8 +55,8 @@ public class UndeterminedVerdictTests(ITestOutputHelper output)
         output.WriteLine(evidence);
 
         Assert.True(scaling.Ci95.Low > 0.5 + ScalingFit.EquivalenceMargin, "precondition: β's interval excludes ½");
-        Assert.Equal(OnsetKinds.Undetermined, scaling.Verdict);
-        Assert.Equal(OnsetKinds.Undetermined, verdict);
+        Assert.False(scaling.SupportsOneHalf);
+        Assert.Equal(OnsetKind.Undetermined, verdict);
         Assert.Contains("β excludes ½", evidence, StringComparison.Ordinal);
     }
 
@@ -71,8 +71,8 @@ public class UndeterminedVerdictTests(ITestOutputHelper output)
         output.WriteLine(evidence);
 
         Assert.True(scaling.Ci95.Width > ScalingFit.InformativeWidth, "precondition: β's interval is too wide");
-        Assert.Equal(OnsetKinds.Undetermined, scaling.Verdict);
-        Assert.Equal(OnsetKinds.Undetermined, verdict);
+        Assert.False(scaling.SupportsOneHalf);
+        Assert.Equal(OnsetKind.Undetermined, verdict);
         Assert.Contains("too wide to confirm ½", evidence, StringComparison.Ordinal);
     }
 
@@ -87,9 +87,9 @@ public class UndeterminedVerdictTests(ITestOutputHelper output)
         var (verdict, evidence, scaling) = Judge(periods);
         output.WriteLine(evidence);
 
-        Assert.Equal(OnsetKinds.SaddleNodeOnCircle, scaling.Verdict);
-        Assert.True(PeriodLaws.Weigh(periods)!.BestWeight < OnsetKind.DecisiveWeight, "precondition: no decisive law");
-        Assert.Equal(OnsetKinds.Undetermined, verdict);
+        Assert.True(scaling.SupportsOneHalf);
+        Assert.True(PeriodLaws.Weigh(periods)!.BestWeight < OnsetKindDecision.DecisiveWeight, "precondition: no decisive law");
+        Assert.Equal(OnsetKind.Undetermined, verdict);
         Assert.Contains("no period law stands out", evidence, StringComparison.Ordinal);
     }
 }
