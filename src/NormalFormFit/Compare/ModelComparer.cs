@@ -72,7 +72,7 @@ public static class ModelComparer
                 $"{problem.Points} data points cannot determine {problem.FreeCount} unknowns: add runs or hold parameters fixed")));
         }
 
-        var fit = LevenbergMarquardt.Minimize(problem.Evaluate, problem.StartVector(), options.MaxIterations);
+        var fit = LevenbergMarquardt.Minimize(problem.Evaluate, problem.StartVector(), new LevenbergMarquardtOptions { MaxIterations = options.MaxIterations });
         if (fit.Exit == LevenbergMarquardtExit.InvalidStart)
         {
             return Loaded.Fail<ModelComparison>(new Diagnostic(Severity.Error, CompareFailures.CannotFit,

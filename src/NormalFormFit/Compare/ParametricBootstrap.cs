@@ -77,7 +77,7 @@ internal sealed class ParametricBootstrap(ComparisonProblem problem, OnsetSearch
             return null;
         }
 
-        var fit = LevenbergMarquardt.Minimize(replica.Evaluate, replica.StartVector(), options.MaxIterations);
+        var fit = LevenbergMarquardt.Minimize(replica.Evaluate, replica.StartVector(), new LevenbergMarquardtOptions { MaxIterations = options.MaxIterations });
         if (fit.Exit == LevenbergMarquardtExit.InvalidStart || fit.Parameters.Any(x => !double.IsFinite(x)))
         {
             return null;

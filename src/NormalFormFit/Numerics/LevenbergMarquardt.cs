@@ -60,32 +60,54 @@ public sealed record LevenbergMarquardtResult(
         : [.. Parameters.Select(_ => double.NaN)];
 }
 
+/// <summary>Settings of a Levenberg–Marquardt fit; the defaults suit a fit whose parameters need 4–6 significant digits.</summary>
+public sealed record LevenbergMarquardtOptions
+{
+    /// <summary>Iterations at most (each computes one Jacobian).</summary>
+    public int MaxIterations { get; init; } = 200;
+
+    /// <summary>Stop when an accepted step lowers Σr² by less than this, relative to Σr².</summary>
+    public double CostTolerance { get; init; } = 1e-10;
+
+    /// <summary>Stop when an accepted step moves no parameter by more than this, relative to |q_u| + 1e-8.</summary>
+    public double StepTolerance { get; init; } = 1e-10;
+
+    /// <summary>Defaults.</summary>
+    public static LevenbergMarquardtOptions Default { get; } = new();
+}
+
 /// <summary>
 /// Nonlinear least squares min Σrᵢ(q)² by Levenberg (1944) – Marquardt (1963) with Marquardt's diagonal scaling:
 /// solve (JᵀJ + λ·diag JᵀJ)δ = −Jᵀr by Cholesky; accept δ when Σr² does not rise (then λ ÷ 3), else λ × 4.
-/// Stops when an accepted step lowers Σr² by less than 1e-10 relative, or moves no parameter by more than 1e-10
-/// relative; when no damping up to 1e16 lowers Σr²; or at the iteration limit. Cost per iteration O(n·k²) plus one
-/// evaluation of r and J per trial step.
+/// Stops (<see cref="LevenbergMarquardtOptions"/>) when an accepted step lowers Σr² or moves the parameters by less
+/// than its tolerance, relative; when a refused step is below 1e-12 relative (or the step tolerance, if smaller);
+/// when no damping up to 1e16 lowers Σr²; or at the iteration limit. Cost per iteration O(n·k² + k³) plus one
+/// evaluation of r and J per trial step. Checked against NIST StRD certified values (Misra1a, Thurber, MGH09).
 /// </summary>
 public static class LevenbergMarquardt
 {
     private const double InitialDamping = 1e-3;
     private const double MaxDamping = 1e16;
     private const double MinDamping = 1e-12;
-    private const double CostTolerance = 1e-10;
-    private const double StepTolerance = 1e-10;
     private const double RejectedStepTolerance = 1e-12;
 
     /// <summary>Fits from <paramref name="start"/> (not changed).</summary>
     /// <param name="residuals">Residuals and Jacobian at given parameters.</param>
     /// <param name="start">Starting parameters.</param>
-    /// <param name="maxIterations">Iterations at most (at least 1).</param>
+    /// <param name="options">Settings; defaults when null.</param>
     /// <returns>The fit, with its exit reason.</returns>
-    public static LevenbergMarquardtResult Minimize(ResidualsAndJacobian residuals, double[] start, int maxIterations = 200)
+    public static LevenbergMarquardtResult Minimize(ResidualsAndJacobian residuals, double[] start, LevenbergMarquardtOptions? options = null)
     {
         ArgumentNullException.ThrowIfNull(residuals);
         ArgumentNullException.ThrowIfNull(start);
-        ArgumentOutOfRangeException.ThrowIfLessThan(maxIterations, 1);
+        options ??= LevenbergMarquardtOptions.Default;
+        ArgumentOutOfRangeException.ThrowIfLessThan(options.MaxIterations, 1);
+        ArgumentOutOfRangeException.ThrowIfNegative(options.CostTolerance);
+        ArgumentOutOfRangeException.ThrowIfNegative(options.StepTolerance);
+        var maxIterations = options.MaxIterations;
+        var costTolerance = options.CostTolerance;
+        var stepTolerance = options.StepTolerance;
+        var rejectedStepTolerance = Math.Min(RejectedStepTolerance, stepTolerance);
         var k = start.Length;
         var q = (double[])start.Clone();
         if (!residuals(q, out var r, out var jac))
@@ -138,17 +160,17 @@ public static class LevenbergMarquardt
                         cost = trialCost;
                         lambda = Math.Max(lambda / 3.0, MinDamping);
                         accepted = true;
-                        converged = fall < CostTolerance || relStep < StepTolerance;
+                        converged = fall < costTolerance || relStep < stepTolerance;
                         if (converged)
                         {
-                            exit = fall < CostTolerance ? LevenbergMarquardtExit.CostConverged : LevenbergMarquardtExit.StepConverged;
+                            exit = fall < costTolerance ? LevenbergMarquardtExit.CostConverged : LevenbergMarquardtExit.StepConverged;
                         }
 
                         break;
                     }
                 }
 
-                if (relStep < RejectedStepTolerance)
+                if (relStep < rejectedStepTolerance)
                 {
                     converged = true;
                     exit = LevenbergMarquardtExit.StepConverged;
