@@ -1,4 +1,5 @@
 using MathNet.Numerics.LinearAlgebra;
+using MathNet.Numerics.LinearAlgebra.Factorization;
 
 namespace NormalFormFit.Numerics;
 
@@ -218,75 +219,34 @@ public static class LevenbergMarquardt
         return (a, g);
     }
 
-    /// <summary>Solves Ax = b for a symmetric positive-definite A; null when A is not numerically positive definite.</summary>
+    /// <summary>
+    /// Solves Ax = b for a symmetric positive-definite A by MathNet's Cholesky factorisation A = LLᵀ; null when A is
+    /// not numerically positive definite: MathNet finds a pivot ≤ 0, or a pivot L_jj² has lost all but 1e-13 of A_jj
+    /// to rounding.
+    /// </summary>
     private static double[]? SolveSpd(double[,] a, double[] b)
     {
-        var l = CholeskyFactor(a);
-        return l is null ? null : CholeskySolve(l, b);
-    }
-
-    /// <summary>Lower Cholesky factor A = LLᵀ (Golub &amp; Van Loan 2013, alg. 4.2.1), or null when a pivot is lost to rounding.</summary>
-    private static double[,]? CholeskyFactor(double[,] a)
-    {
-        var n = a.GetLength(0);
-        var l = new double[n, n];
-        for (var j = 0; j < n; j++)
+        Cholesky<double> chol;
+        try
         {
-            var d = a[j, j];
-            for (var k = 0; k < j; k++)
-            {
-                d -= l[j, k] * l[j, k];
-            }
+            chol = Matrix<double>.Build.DenseOfArray(a).Cholesky();
+        }
+        catch (ArgumentException)
+        {
+            return null;
+        }
 
+        var l = chol.Factor;
+        for (var j = 0; j < l.RowCount; j++)
+        {
+            var d = l[j, j] * l[j, j];
             if (!(d > 1e-13 * Math.Abs(a[j, j])) || !double.IsFinite(d))
             {
                 return null;
             }
-
-            l[j, j] = Math.Sqrt(d);
-            for (var i = j + 1; i < n; i++)
-            {
-                var s = a[i, j];
-                for (var k = 0; k < j; k++)
-                {
-                    s -= l[i, k] * l[j, k];
-                }
-
-                l[i, j] = s / l[j, j];
-            }
         }
 
-        return l;
-    }
-
-    /// <summary>Solves LLᵀx = b by forward and back substitution.</summary>
-    private static double[] CholeskySolve(double[,] l, double[] b)
-    {
-        var n = b.Length;
-        var y = new double[n];
-        for (var i = 0; i < n; i++)
-        {
-            var s = b[i];
-            for (var k = 0; k < i; k++)
-            {
-                s -= l[i, k] * y[k];
-            }
-
-            y[i] = s / l[i, i];
-        }
-
-        for (var i = n - 1; i >= 0; i--)
-        {
-            var s = y[i];
-            for (var k = i + 1; k < n; k++)
-            {
-                s -= l[k, i] * y[k];
-            }
-
-            y[i] = s / l[i, i];
-        }
-
-        return y;
+        return chol.Solve(Vector<double>.Build.DenseOfArray(b)).ToArray();
     }
 
     /// <summary>
@@ -314,7 +274,7 @@ public static class LevenbergMarquardt
             j.SetColumn(u, j.Column(u) / scale[u]);
         }
 
-        var rFactor = j.QR(MathNet.Numerics.LinearAlgebra.Factorization.QRMethod.Thin).R;
+        var rFactor = j.QR(QRMethod.Thin).R;
         for (var u = 0; u < k; u++)
         {
             if (!(Math.Abs(rFactor[u, u]) > 1e-12))
