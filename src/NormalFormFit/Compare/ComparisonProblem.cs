@@ -54,8 +54,6 @@ internal sealed class ComparisonProblem
 
     public int FreeCount => freeToFull.Length;
 
-    public int FullCount => fullStart.Length;
-
     public int Points => bins.Count + periods.Count;
 
     public int ParameterCount => model.Parameters.Count;
@@ -102,7 +100,7 @@ internal sealed class ComparisonProblem
             }
 
             used.Add(run);
-            problem.Runs.Add(new RunData(run.File, run.Param, run.Direction < 0 ? -1 : 1, f.Centres.Length, byBin, byBin.Count(b => b >= 0)));
+            problem.Runs.Add(new RunData(run.File, run.Param, run.Direction < 0 ? -1 : 1, byBin));
         }
 
         problem.sources.AddRange(used);
@@ -120,8 +118,6 @@ internal sealed class ComparisonProblem
 
         return problem;
     }
-
-    public int FieldPointCount => bins.Count;
 
     /// <summary>
     /// <paramref name="seed"/> mixed with a fingerprint of the fitted data: FNV-1a, 64 bits (Fowler, Noll &amp; Vo;
@@ -304,10 +300,6 @@ internal sealed class ComparisonProblem
         return true;
     }
 
-    /// <summary>Model value of θ̇ (in the run's orientation) at one phase, for the onset search.</summary>
-    public static double Speed(ModelExpression.Evaluator eval, double theta, double muModel, ReadOnlySpan<double> pars) =>
-        eval.Evaluate(theta, muModel, pars, []);
-
     private void FillRow(double[,] jacobian, int row, double[] d, double muLab, double se)
     {
         var pCount = ParameterCount;
@@ -331,8 +323,8 @@ internal sealed class ComparisonProblem
     }
 }
 
-/// <summary>One run as the problem sees it: its μ, orientation, which field bins became points and its period point.</summary>
-internal sealed record RunData(string File, double MuLab, int Sign, int Bins, int[] FieldIndexByBin, int FieldPoints)
+/// <summary>One run as the problem sees it: its μ, orientation (+1, or −1 when its phase was negated), the point of each field bin (−1: none) and its period point (−1: none).</summary>
+internal sealed record RunData(string File, double MuLab, int Sign, int[] FieldIndexByBin)
 {
     public int PeriodIndex { get; init; } = -1;
 }

@@ -91,7 +91,7 @@ internal sealed class OnsetSearch(ComparisonProblem problem)
         var at = 0;
         for (var i = 0; i < OnsetGrid; i++)
         {
-            var f = sign * ComparisonProblem.Speed(eval, i * h, muModel, pars);
+            var f = sign * eval.Evaluate(i * h, muModel, pars, []);
             if (!double.IsFinite(f))
             {
                 return double.NaN;
@@ -105,7 +105,7 @@ internal sealed class OnsetSearch(ComparisonProblem problem)
         }
 
         var x = at * h;
-        double F(double t) => sign * ComparisonProblem.Speed(eval, t, muModel, pars);
+        double F(double t) => sign * eval.Evaluate(t, muModel, pars, []);
         var refined = F(Smoothing.Brent.Minimize(F, x - h, x + h, x, best, 1e-10));
         return double.IsFinite(refined) ? Math.Min(best, refined) : best;
     }
