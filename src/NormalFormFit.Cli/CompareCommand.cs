@@ -67,14 +67,17 @@ internal static class CompareCommand
             return ExitCodes.BadInput;
         }
 
-        var analysis = ManifestAnalyzer.Analyze(manifestPath, AnalyzeOptions.Default);
+        // One set of reading and analysis options for the runs and, through AnalysedRunSet, for the replicates.
+        var analyzeOptions = AnalyzeOptions.Default;
+        var analysis = ManifestAnalyzer.Analyze(manifestPath, analyzeOptions);
         if (analysis.Value is null)
         {
             Report(stderr, analysis.Diagnostics, null);
             return analysis.Diagnostics.Any(e => e.Code == InsufficientData.TooFewRuns) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
-        var result = ModelComparer.Compare(analysis.Value.Runs, expression, options);
+        var runs = new AnalysedRunSet(new RunSet(analysis.Value.Runs, analysis.Value.ParamUnits), analyzeOptions);
+        var result = ModelComparer.Compare(runs, expression, options);
         if (result.Value is null)
         {
             Report(stderr, result.Diagnostics, null);

@@ -1,5 +1,4 @@
 using System.Globalization;
-using NormalFormFit.Analysis;
 
 namespace NormalFormFit.Compare;
 
@@ -42,9 +41,6 @@ public sealed record CompareOptions
 
     /// <summary>True (default): the bootstrap estimate of the bias (mostly the reconstruction's smoothing bias) is removed from the parameters and the onset.</summary>
     public bool CorrectBias { get; init; } = true;
-
-    /// <summary>The per-run analysis the runs went through; replicates go through the same.</summary>
-    public RunOptions Analysis { get; init; } = RunOptions.Default;
 
     /// <summary>Replicates computed at once (1 = sequential). Results do not depend on it.</summary>
     public int Parallelism { get; init; } = Environment.ProcessorCount;
