@@ -92,7 +92,7 @@ public static class EventRunAnalyzer
         }
 
         var mean = intervals.Average();
-        var se = intervals.Count >= 2 ? Field.PhaseFieldEstimator.StandardDeviation(intervals) / Math.Sqrt(intervals.Count) : double.NaN;
+        var se = Numerics.SampleStatistics.StandardErrorOfMean(intervals);
         if (intervals.Count < 3)
         {
             flags.Add(RunFlags.FewRevolutions);
