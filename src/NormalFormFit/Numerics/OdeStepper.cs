@@ -14,7 +14,7 @@ internal interface IPlanarField
 /// Fixed-step integrators for <see cref="IPlanarField"/>: the classical fourth-order Runge–Kutta step (Hairer, Nørsett
 /// &amp; Wanner, Solving Ordinary Differential Equations I, 2nd ed., 1993, §II.1) and the Euler–Maruyama step for
 /// dx = F(x) dt + dW with additive noise (Kloeden &amp; Platen, Numerical Solution of Stochastic Differential
-/// Equations, 1992, §9.1; strong order 1 for additive noise).
+/// Equations, 1992; strong order 1 for additive noise).
 /// </summary>
 /// <remarks>
 /// Generic over the field so that a struct field (a system bound to its parameter) is called without boxing. RK4: four

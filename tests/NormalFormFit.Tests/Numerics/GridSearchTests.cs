@@ -6,7 +6,7 @@ namespace NormalFormFit.Tests.Numerics;
 public class GridSearchTests
 {
     // Near a smooth minimum f changes only quadratically, so rounding of f (≈ 1e-16·|f|) hides the minimiser within
-    // about √(2·1e-16·|f|/f'') ≈ 1.5e-8 for |f|, f'' of order one (Press et al., Numerical Recipes, 3rd ed., §10.1);
+    // about √(2·1e-16·|f|/f'') ≈ 1.5e-8 for |f|, f'' of order one (Press et al., Numerical Recipes, 3rd ed., §10.2);
     // 1e-7 leaves a margin and still catches a minimiser off by a single grid cell or a wrong bracket.
     private const double LocationTolerance = 1e-7;
 
