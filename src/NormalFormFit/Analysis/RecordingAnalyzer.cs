@@ -87,7 +87,7 @@ public static class EventRunAnalyzer
         }
 
         var mean = intervals.Average();
-        var se = intervals.Count >= 2 ? Field.PhaseFieldEstimator.StandardDeviation(intervals) / Math.Sqrt(intervals.Count) : double.NaN;
+        var se = Numerics.SampleStatistics.StandardErrorOfMean(intervals);
         found.Raise(RunChecks.FewIntervals(file, intervals.Count));
 
         var nan = new Estimate(double.NaN, double.NaN);

@@ -1,4 +1,5 @@
 using NormalFormFit.Field;
+using NormalFormFit.Numerics;
 
 namespace NormalFormFit.Bottleneck;
 
@@ -124,9 +125,9 @@ public static class BottleneckLocator
 
             if (a.Count >= 0.9 * options.BootstrapReplicates)
             {
-                seA = PhaseFieldEstimator.StandardDeviation(a);
-                seB = PhaseFieldEstimator.StandardDeviation(b);
-                seShift = PhaseFieldEstimator.StandardDeviation(s);
+                seA = SampleStatistics.StandardDeviation(a);
+                seB = SampleStatistics.StandardDeviation(b);
+                seShift = SampleStatistics.StandardDeviation(s);
             }
         }
 
@@ -200,7 +201,7 @@ public static class BottleneckLocator
                 continue;
             }
 
-            var se = perRev.Count >= 2 ? PhaseFieldEstimator.StandardDeviation(perRev) / Math.Sqrt(perRev.Count) : double.NaN;
+            var se = SampleStatistics.StandardErrorOfMean(perRev);
             result.Add(new ResidualBin(-w + ((k + 0.5) * 2 * w / bins), twr / tw, se, count[k]));
         }
 

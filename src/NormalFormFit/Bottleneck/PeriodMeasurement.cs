@@ -51,7 +51,7 @@ public sealed record PeriodMeasurement(double ReferencePhase, double[] CrossingT
         }
 
         var mean = periods.Count > 0 ? periods.Average() : double.NaN;
-        var se = periods.Count >= 2 ? Field.PhaseFieldEstimator.StandardDeviation(periods) / Math.Sqrt(periods.Count) : double.NaN;
+        var se = Numerics.SampleStatistics.StandardErrorOfMean(periods);
         return new PeriodMeasurement(referencePhase, [.. crossings], [.. periods], new Estimate(mean, se));
     }
 }

@@ -1,4 +1,5 @@
 using NormalFormFit.Field;
+using NormalFormFit.Numerics;
 
 namespace NormalFormFit.Bottleneck;
 
@@ -119,7 +120,7 @@ public static class PhaseDiffusion
             return null;
         }
 
-        var se = PhaseFieldEstimator.StandardDeviation(perBlock) / Math.Sqrt(perBlock.Count);
+        var se = SampleStatistics.StandardErrorOfMean(perBlock);
         var diffusion = new Estimate(dAll, se);
         var ratio = double.NaN;
         if (bottleneck is { } bn && bn.A.Value > 0 && bn.B.Value > 0 && dAll > 0)

@@ -145,7 +145,7 @@ public static class ModelComparer
         for (var u = 0; u < k; u++)
         {
             var draws = ok.Select(x => x.Free[u]).ToList();
-            freeSe[u] = ok.Count >= 2 ? inflate * Std(draws) : double.NaN;
+            freeSe[u] = ok.Count >= 2 ? inflate * Numerics.SampleStatistics.StandardDeviation(draws) : double.NaN;
             if (options.CorrectBias && ok.Count >= 2)
             {
                 freeBias[u] = draws.Average() - centreFree[u];
@@ -176,7 +176,7 @@ public static class ModelComparer
             if (onsets.Count == ok.Count)
             {
                 var value = options.CorrectBias ? onsetHat - (onsets.Average() - onsetCentre) : onsetHat;
-                var se = inflate * Std(onsets);
+                var se = inflate * Numerics.SampleStatistics.StandardDeviation(onsets);
                 onset = new Estimate(value, se);
                 ci = new Interval(value - (t * se), value + (t * se));
             }
@@ -250,5 +250,4 @@ public static class ModelComparer
         return Enumerable.Range(0, problem.RunCount).All(i => problem.TurnsAt(shiftedFull, i)) ? shifted : fitted;
     }
 
-    private static double Std(IReadOnlyList<double> xs) => Field.PhaseFieldEstimator.StandardDeviation(xs);
 }

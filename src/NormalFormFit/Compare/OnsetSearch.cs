@@ -39,7 +39,7 @@ internal sealed class OnsetSearch(ComparisonProblem problem)
             var g = i == labs.Length - 1 ? ghi : G(labs[i]);
             if (Math.Sign(g) != Math.Sign(prevG))
             {
-                return Root(G, prevX, prevG, labs[i], g);
+                return Numerics.RootFinding.RegulaFalsi(G, prevX, prevG, labs[i], g);
             }
 
             prevX = labs[i];
@@ -67,7 +67,7 @@ internal sealed class OnsetSearch(ComparisonProblem problem)
 
             if (g1 <= 0)
             {
-                return Root(G, x0, g0, x1, g1);
+                return Numerics.RootFinding.RegulaFalsi(G, x0, g0, x1, g1);
             }
 
             if (g1 >= g0)
@@ -106,62 +106,7 @@ internal sealed class OnsetSearch(ComparisonProblem problem)
 
         var x = at * h;
         double F(double t) => sign * eval.Evaluate(t, muModel, pars, []);
-        var refined = F(Smoothing.Brent.Minimize(F, x - h, x + h, x, best, 1e-10));
+        var refined = F(Numerics.Brent.Minimize(F, x - h, x + h, x, best, 1e-10));
         return double.IsFinite(refined) ? Math.Min(best, refined) : best;
-    }
-
-    /// <summary>Regula falsi, Illinois variant (Dowell &amp; Jarratt 1971), on a bracket with a sign change.</summary>
-    private static double Root(Func<double, double> g, double a, double ga, double b, double gb)
-    {
-        if (ga == 0)
-        {
-            return a;
-        }
-
-        if (gb == 0)
-        {
-            return b;
-        }
-
-        var side = 0;
-        for (var i = 0; i < 100; i++)
-        {
-            var c = ((a * gb) - (b * ga)) / (gb - ga);
-            var gc = g(c);
-            if (!double.IsFinite(gc))
-            {
-                return double.NaN;
-            }
-
-            if (Math.Abs(b - a) < 1e-12 * Math.Max(1.0, Math.Abs(c)) || gc == 0)
-            {
-                return c;
-            }
-
-            if (Math.Sign(gc) == Math.Sign(gb))
-            {
-                b = c;
-                gb = gc;
-                if (side == -1)
-                {
-                    ga *= 0.5;
-                }
-
-                side = -1;
-            }
-            else
-            {
-                a = c;
-                ga = gc;
-                if (side == 1)
-                {
-                    gb *= 0.5;
-                }
-
-                side = 1;
-            }
-        }
-
-        return ((a * gb) - (b * ga)) / (gb - ga);
     }
 }

@@ -1,3 +1,5 @@
+using NormalFormFit.Numerics;
+
 namespace NormalFormFit.Field;
 
 /// <summary>Options of the field reconstruction.</summary>
@@ -111,12 +113,12 @@ public static class PhaseFieldEstimator
 
             for (var j = 0; j < m; j++)
             {
-                se[j] = nV[j] >= 2 ? Math.Sqrt(Math.Max(0, (sumV2[j] - (sumV[j] * sumV[j] / nV[j])) / (nV[j] - 1))) : double.NaN;
+                se[j] = SampleStatistics.StandardDeviationFromSums(sumV[j], sumV2[j], nV[j]);
             }
 
             if (periods.Count >= 0.9 * b)
             {
-                periodSe = StandardDeviation(periods);
+                periodSe = SampleStatistics.StandardDeviation(periods);
             }
         }
         else
@@ -181,22 +183,5 @@ public static class PhaseFieldEstimator
         }
 
         return t;
-    }
-
-    internal static double StandardDeviation(IReadOnlyList<double> xs)
-    {
-        if (xs.Count < 2)
-        {
-            return double.NaN;
-        }
-
-        var mean = xs.Average();
-        var ss = 0.0;
-        foreach (var x in xs)
-        {
-            ss += (x - mean) * (x - mean);
-        }
-
-        return Math.Sqrt(ss / (xs.Count - 1));
     }
 }

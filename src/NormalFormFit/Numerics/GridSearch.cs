@@ -1,5 +1,3 @@
-using NormalFormFit.Smoothing;
-
 namespace NormalFormFit.Numerics;
 
 /// <summary>The outcome of <see cref="GridSearch.Minimize"/>.</summary>

@@ -100,10 +100,7 @@ public static class SquareRootLawFit
         var cov = j.TransposeThisAndMultiply(j).Inverse() * red;
         var law = new SquareRootPeriodLaw(coef, muc, side, cov.ToArray(), red, dof, Scaled: true);
 
-        var k2 = p + 1;
-        var aicc = n - k2 - 1 > 0
-            ? (n * Math.Log(Math.Max(chi2, 1e-300) / n)) + (2 * k2) + (2.0 * k2 * (k2 + 1) / (n - k2 - 1))
-            : double.PositiveInfinity;
+        var aicc = InformationCriteria.Aicc(chi2, n, p + 1);
 
         var q = StudentT.InvCDF(0, 1, dof, 0.975);
         var threshold = chi2 + (q * q * red);
@@ -135,47 +132,10 @@ public static class SquareRootLawFit
 
     /// <summary>
     /// The first zero of <paramref name="excess"/> (negative at <paramref name="start"/>) walking in
-    /// <paramref name="direction"/> up to <paramref name="limit"/>, by widening steps then bisection; NaN when none.
+    /// <paramref name="direction"/> up to <paramref name="limit"/>, by steps growing from 10⁻³ by 1.5 then bisection;
+    /// NaN when none.
     /// </summary>
-    private static double Edge(Func<double, double> excess, double start, int direction, double limit)
-    {
-        var inside = start;
-        var step = 1e-3;
-        while (true)
-        {
-            var probe = inside + (direction * step);
-            var beyond = direction * (probe - limit) >= 0;
-            if (beyond)
-            {
-                probe = limit;
-            }
-
-            if (excess(probe) > 0)
-            {
-                double lo = inside, hi = probe;
-                for (var k = 0; k < 200 && Math.Abs(hi - lo) > 1e-13 * (1 + Math.Abs(lo)); k++)
-                {
-                    var mid = 0.5 * (lo + hi);
-                    if (excess(mid) > 0)
-                    {
-                        hi = mid;
-                    }
-                    else
-                    {
-                        lo = mid;
-                    }
-                }
-
-                return 0.5 * (lo + hi);
-            }
-
-            if (beyond)
-            {
-                return double.NaN;
-            }
-
-            inside = probe;
-            step *= 1.5;
-        }
-    }
+    private static double Edge(Func<double, double> excess, double start, int direction, double limit) =>
+        RootFinding.FirstCrossing(
+            excess, start, RootFinding.GeometricSteps(start, direction, 1e-3, 1.5, limit), new BisectionStop(0.0, 1e-13, 200));
 }

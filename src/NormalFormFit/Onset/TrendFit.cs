@@ -1,5 +1,6 @@
 using MathNet.Numerics.Distributions;
 using MathNet.Numerics.LinearAlgebra;
+using NormalFormFit.Numerics;
 
 namespace NormalFormFit.Onset;
 
@@ -70,14 +71,7 @@ public static class TrendFit
     public static double Aicc(Trend trend, int n)
     {
         ArgumentNullException.ThrowIfNull(trend);
-        var k = trend.Coefficients.Length + 1;
-        if (n - k - 1 <= 0)
-        {
-            return double.PositiveInfinity;
-        }
-
-        var rss = trend.ReducedChiSquare * trend.DegreesOfFreedom;
-        return (n * Math.Log(Math.Max(rss, 1e-300) / n)) + (2 * k) + (2.0 * k * (k + 1) / (n - k - 1));
+        return InformationCriteria.Aicc(trend.ReducedChiSquare * trend.DegreesOfFreedom, n, trend.Coefficients.Length + 1);
     }
 
     /// <summary>
@@ -195,39 +189,13 @@ public static class TrendFit
             return (y * y) - (q * q * trend.Variance(mu));
         }
 
+        // Probes at offsets growing by 1.25 from 10⁻³ of the span up to 100 spans; no crossing: unbounded that side.
+        var stop = new BisectionStop(1e-13 * (1 + Math.Abs(root)), 0.0, 100);
         double Edge(int direction)
         {
-            var step = span * 1e-3;
-            var inside = root;
-            var limit = 100 * span;
-            while (step <= limit)
-            {
-                var probe = root + (direction * step);
-                if (G(probe) > 0)
-                {
-                    // Bisect between inside and probe.
-                    double lo = inside, hi = probe;
-                    for (var k = 0; k < 100 && Math.Abs(hi - lo) > 1e-13 * (1 + Math.Abs(root)); k++)
-                    {
-                        var mid = 0.5 * (lo + hi);
-                        if (G(mid) > 0)
-                        {
-                            hi = mid;
-                        }
-                        else
-                        {
-                            lo = mid;
-                        }
-                    }
-
-                    return 0.5 * (lo + hi);
-                }
-
-                inside = probe;
-                step *= 1.25;
-            }
-
-            return direction * double.PositiveInfinity;
+            var probes = RootFinding.GeometricOffsets(root, direction, span * 1e-3, 1.25, 100 * span);
+            var edge = RootFinding.FirstCrossing(G, root, probes, stop);
+            return double.IsNaN(edge) ? direction * double.PositiveInfinity : edge;
         }
 
         return new Interval(Edge(-1), Edge(+1));

@@ -86,7 +86,8 @@ public static class PeriodLaws
         return new PeriodLawWeights(w[0] / total, w[1] / total, w[2] / total, fits);
     }
 
-    private static double Aic(double rss, int n) => (n * Math.Log(Math.Max(rss, 1e-300) / n)) + (2 * 4);
+    // k = 4: three coefficients and the variance scale.
+    private static double Aic(double rss, int n) => Numerics.InformationCriteria.Aic(rss, n, 4);
 
     private static PeriodLawFit Singular(PeriodPoint[] pts, double[] sig, int side, double edge, double span, Func<double, double> shape, PeriodLaw law)
     {

@@ -179,13 +179,7 @@ public static class ScalingFit
     // AICc = n ln(χ²/n) + 2k + 2k(k + 1)/(n − k − 1), k = parameters + 1 (the variance scale), Hurvich & Tsai 1989.
     // The log-T forms and the offset form give the same constant in −2 ln L of the measured periods (see the class
     // remarks), so their AICc compare directly.
-    private static double Aicc(double chi2, int n, int parameters)
-    {
-        var k = parameters + 1;
-        return n - k - 1 > 0
-            ? (n * Math.Log(Math.Max(chi2, 1e-300) / n)) + (2 * k) + (2.0 * k * (k + 1) / (n - k - 1))
-            : double.PositiveInfinity;
-    }
+    private static double Aicc(double chi2, int n, int parameters) => Numerics.InformationCriteria.Aicc(chi2, n, parameters + 1);
 
     private static Solution FromOffset(OffsetPowerLawSolution o, int n) =>
         new(o.MuC, o.Beta, o.BetaSe, o.MuCSe, 0, n - o.Parameters, Aicc(o.ChiSquare, n, o.Parameters))

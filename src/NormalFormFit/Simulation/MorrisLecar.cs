@@ -1,3 +1,5 @@
+using NormalFormFit.Numerics;
+
 namespace NormalFormFit.Simulation;
 
 /// <summary>
@@ -7,8 +9,9 @@ namespace NormalFormFit.Simulation;
 /// C V̇ = I − gL(V − VL) − gCa m∞(V)(V − VCa) − gK w(V − VK),  ẇ = φ (w∞(V) − w)/τw(V),
 /// m∞ = ½(1 + tanh((V − V1)/V2)), w∞ = ½(1 + tanh((V − V3)/V4)), τw = 1/cosh((V − V3)/(2V4)).
 /// Units: mV, ms, μA/cm², μF/cm², mS/cm². Class I: oscillations start at a saddle-node on the invariant circle.
+/// As a planar system: state (V, w), μ = I.
 /// </summary>
-public sealed record MorrisLecar
+public sealed record MorrisLecar : IPlanarSystem
 {
     /// <summary>Membrane capacitance.</summary>
     public double C { get; init; } = 20;
@@ -49,6 +52,12 @@ public sealed record MorrisLecar
     /// <summary>The class-I set.</summary>
     public static MorrisLecar ClassOne { get; } = new();
 
+    /// <inheritdoc/>
+    public string Name => "morris-lecar";
+
+    /// <inheritdoc/>
+    public string Formula => "C dV/dt = I − gL(V − VL) − gCa m∞(V)(V − VCa) − gK w(V − VK), dw/dt = φ(w∞(V) − w)/τw(V)";
+
     private double MInf(double v) => 0.5 * (1 + Math.Tanh((v - V1) / V2));
 
     private double WInf(double v) => 0.5 * (1 + Math.Tanh((v - V3) / V4));
@@ -60,6 +69,18 @@ public sealed record MorrisLecar
         var dw = Phi * (WInf(v) - w) * Math.Cosh((v - V3) / (2 * V4));
         return (dv, dw);
     }
+
+    /// <inheritdoc/>
+    public void Rate(double x0, double x1, double mu, out double rate0, out double rate1) => (rate0, rate1) = Derivatives(x0, x1, mu);
+
+    /// <summary>
+    /// The angle of (V, w) about (−10 mV, 0.2) with V in units of 40 mV and w in units of 0.2: the class-I spiking
+    /// cycle (V from about −47 to +31 mV, w from 0 to 0.42) goes round that point once per spike, counterclockwise.
+    /// </summary>
+    public double Phase(double x0, double x1) => Math.Atan2((x1 - 0.2) / 0.2, (x0 + 10) / 40);
+
+    /// <summary>V = −40 mV with w at its steady state, the start of <see cref="Simulate"/>.</summary>
+    public (double X0, double X1) Start(double mu) => (-40, WInf(-40));
 
     /// <summary>Steady-state current I∞(V) = gL(V−VL) + gCa m∞(V)(V−VCa) + gK w∞(V)(V−VK): the current that holds V at rest.</summary>
     public double SteadyStateCurrent(double v) =>
@@ -78,31 +99,15 @@ public sealed record MorrisLecar
     /// <summary>
     /// The current of the saddle-node of rest states: the first local maximum of I∞(V) (the knee of the steady-state
     /// I–V curve, where dI∞/dV = 0 and rest and saddle merge). Found by scanning V from −90 mV in 0.1 mV steps for the
-    /// first sign change of dI∞/dV from + to −, then bisection to machine precision. Cost ~10³ evaluations.
+    /// first sign change of dI∞/dV from + to −, then bisection to 10⁻¹³ mV. Cost ~10³ evaluations.
     /// </summary>
     public (double Current, double Voltage) RestSaddleNode()
     {
-        var lo = -90.0;
         for (var v = -90.0; v < 60; v += 0.1)
         {
             if (SteadyStateSlope(v) > 0 && SteadyStateSlope(v + 0.1) <= 0)
             {
-                lo = v;
-                var hi = v + 0.1;
-                for (var k = 0; k < 200 && hi - lo > 1e-13; k++)
-                {
-                    var mid = 0.5 * (lo + hi);
-                    if (SteadyStateSlope(mid) > 0)
-                    {
-                        lo = mid;
-                    }
-                    else
-                    {
-                        hi = mid;
-                    }
-                }
-
-                var vc = 0.5 * (lo + hi);
+                var vc = RootFinding.Bisect(SteadyStateSlope, v + 0.1, v, new BisectionStop(1e-13, 0.0, 200));
                 return (SteadyStateCurrent(vc), vc);
             }
         }
@@ -117,7 +122,9 @@ public sealed record MorrisLecar
     /// </summary>
     public StateTrack Simulate(double current, int spikes, double step = 0.05, int every = 4, double maxTime = 2e5)
     {
-        double v = -40, w = WInf(-40), t = 0;
+        var (v, w) = Start(current);
+        var field = new PlanarSystemField(this, current);
+        var t = 0.0;
         var times = new List<double>();
         var vs = new List<double>();
         var ws = new List<double>();
@@ -126,14 +133,10 @@ public sealed record MorrisLecar
         var k = 0;
         while (t < maxTime)
         {
-            var (k1v, k1w) = Derivatives(v, w, current);
-            var (k2v, k2w) = Derivatives(v + (0.5 * step * k1v), w + (0.5 * step * k1w), current);
-            var (k3v, k3w) = Derivatives(v + (0.5 * step * k2v), w + (0.5 * step * k2w), current);
-            var (k4v, k4w) = Derivatives(v + (step * k3v), w + (step * k3w), current);
-            var vNew = v + (step / 6 * (k1v + (2 * k2v) + (2 * k3v) + k4v));
-            w += step / 6 * (k1w + (2 * k2w) + (2 * k3w) + k4w);
+            var before = v;
+            OdeStepper.RungeKutta4(field, step, ref v, ref w);
             t += step;
-            if (v < 0 && vNew >= 0)
+            if (before < 0 && v >= 0)
             {
                 if (recording)
                 {
@@ -143,7 +146,6 @@ public sealed record MorrisLecar
                 recording = true;
             }
 
-            v = vNew;
             if (recording && k++ % every == 0)
             {
                 times.Add(t);

@@ -1,3 +1,5 @@
+using NormalFormFit.Numerics;
+
 namespace NormalFormFit.Simulation;
 
 /// <summary>
@@ -116,10 +118,11 @@ public static class PlanarSimulator
         var maxDuration = options.MaxDuration ?? SimulationOptions.FallbackMaxDuration;
         var lastIndex = (long)Math.Floor((maxDuration / options.SamplingInterval) + 1e-9);
         var (x0, x1) = system.Start(mu);
+        var field = new PlanarSystemField(system, mu);
         var warmSteps = (long)Math.Ceiling(warmUp / h);
         for (long s = 0; s < warmSteps; s++)
         {
-            Step(system, mu, h, ref x0, ref x1);
+            OdeStepper.RungeKutta4(field, h, ref x0, ref x1);
         }
 
         var phases = new List<double> { system.Phase(x0, x1) };
@@ -132,7 +135,7 @@ public static class PlanarSimulator
             var before = system.Phase(x0, x1);
             for (var s = 0; s < m; s++)
             {
-                Step(system, mu, h, ref x0, ref x1);
+                OdeStepper.RungeKutta4(field, h, ref x0, ref x1);
             }
 
             var d = system.Phase(x0, x1) - before;
@@ -161,15 +164,11 @@ public static class PlanarSimulator
         var resolved = options with { InitialPhase = truePhase[0], MaxDuration = maxDuration, Substeps = m };
         return new SimulatedRun(system.Name, mu, time, recorded, truePhase, turns, reached, resolved);
     }
+}
 
-    // Classical fourth-order Runge–Kutta step.
-    private static void Step(IPlanarSystem f, double mu, double h, ref double x0, ref double x1)
-    {
-        f.Rate(x0, x1, mu, out var k10, out var k11);
-        f.Rate(x0 + (0.5 * h * k10), x1 + (0.5 * h * k11), mu, out var k20, out var k21);
-        f.Rate(x0 + (0.5 * h * k20), x1 + (0.5 * h * k21), mu, out var k30, out var k31);
-        f.Rate(x0 + (h * k30), x1 + (h * k31), mu, out var k40, out var k41);
-        x0 += h / 6.0 * (k10 + (2.0 * k20) + (2.0 * k30) + k40);
-        x1 += h / 6.0 * (k11 + (2.0 * k21) + (2.0 * k31) + k41);
-    }
+/// <summary>A planar system at fixed μ as the field the integrators step.</summary>
+internal readonly struct PlanarSystemField(IPlanarSystem system, double mu) : IPlanarField
+{
+    /// <inheritdoc/>
+    public void Rate(double x0, double x1, out double rate0, out double rate1) => system.Rate(x0, x1, mu, out rate0, out rate1);
 }

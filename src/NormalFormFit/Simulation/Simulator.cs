@@ -1,4 +1,5 @@
 using System.Globalization;
+using NormalFormFit.Numerics;
 
 namespace NormalFormFit.Simulation;
 
@@ -145,9 +146,11 @@ public static class Simulator
         var kick = Math.Sqrt(2.0 * o.DynamicNoise * h);
         var stochastic = o.DynamicNoise > 0.0;
 
+        var field = new PhaseModelField(model, mu);
         var buffer = new double[InitialCapacity(model, o, lastIndex)];
         buffer[0] = theta0;
         var theta = theta0;
+        var rest = 0.0; // the field's second variable, unused by a phase model
         var n = 1;
         reached = false;
         for (long i = 1; i <= lastIndex; i++)
@@ -156,20 +159,15 @@ public static class Simulator
             {
                 for (var s = 0; s < m; s++)
                 {
-                    // Euler–Maruyama (Kloeden & Platen 1992): θ += f(θ)h + √(2Dh)·Z.
-                    theta += (model.Velocity(theta, mu) * h) + (kick * noise.Next());
+                    // Euler–Maruyama: θ += f(θ)h + √(2Dh)·Z.
+                    OdeStepper.EulerMaruyama(field, h, kick * noise.Next(), 0.0, ref theta, ref rest);
                 }
             }
             else
             {
                 for (var s = 0; s < m; s++)
                 {
-                    // Classical RK4.
-                    var k1 = model.Velocity(theta, mu);
-                    var k2 = model.Velocity(theta + (0.5 * h * k1), mu);
-                    var k3 = model.Velocity(theta + (0.5 * h * k2), mu);
-                    var k4 = model.Velocity(theta + (h * k3), mu);
-                    theta += h / 6.0 * (k1 + (2.0 * k2) + (2.0 * k3) + k4);
+                    OdeStepper.RungeKutta4(field, h, ref theta, ref rest);
                 }
             }
 
@@ -261,5 +259,16 @@ public static class Simulator
         }
 
         return w;
+    }
+}
+
+/// <summary>A phase model at fixed μ as a planar field: θ̇ = f(θ, μ) in the first variable, the second at rest.</summary>
+internal readonly struct PhaseModelField(IPhaseModel model, double mu) : IPlanarField
+{
+    /// <inheritdoc/>
+    public void Rate(double x0, double x1, out double rate0, out double rate1)
+    {
+        rate0 = model.Velocity(x0, mu);
+        rate1 = 0.0;
     }
 }

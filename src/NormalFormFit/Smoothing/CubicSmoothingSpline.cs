@@ -1,3 +1,5 @@
+using NormalFormFit.Numerics;
+
 namespace NormalFormFit.Smoothing;
 
 /// <summary>
@@ -13,24 +15,12 @@ namespace NormalFormFit.Smoothing;
 /// </remarks>
 public static class CubicSmoothingSpline
 {
-    // GCV search over log₁₀ of the rescaled λ. At unit mean spacing the spline's equivalent kernel has
+    // GCV search over log₁₀ of the rescaled λ (GcvSearch). At unit mean spacing the spline's equivalent kernel has
     // a half-width of about λ^(1/4) samples (Silverman 1984, "Spline smoothing: the equivalent variable
     // kernel method"), so 10⁻⁴ is interpolation and n⁴ a straight line. Scan every ScanStep decades
-    // (a factor 3 in kernel width), then refine by Brent's method between the best point's neighbours.
+    // (a factor 3 in kernel width) from 10⁻³ to 100·n⁴; the refinement may go one step below the scan.
     private const double LowestLog10Lambda = -3.0;
     private const double ScanStep = 2.0;
-
-    // λ is found to 0.23 %: far below the sampling variability of the GCV choice itself, and the fit
-    // changes by less than 1e-3 of the residual scale (GCV is flat at its minimum).
-    private const double Log10Tolerance = 1e-3;
-
-    // Once two scan points in a row score above this multiple of the best, the signal has been smoothed
-    // away and the score only climbs towards the straight-line residual variance (common practice, no
-    // source): the scan stops there instead of running to the largest λ.
-    private const double ClimbFactor = 2.0;
-
-    // A fit within 1e-3 of a straight line (tr A < 2.001) cannot change the score noticeably at larger λ.
-    private const double StraightLineTrace = 2.001;
 
     // tr(M⁻¹R) + λ·tr(M⁻¹QᵀW⁻¹Q) = n − 2 exactly; its rounding error measures how far the band of M⁻¹
     // can be trusted. Past 1e-4·tr A (λ ≳ 10¹³ at unit spacing: kernel half-width ≈ 2000 samples) the
@@ -76,52 +66,17 @@ public static class CubicSmoothingSpline
 
     internal static double SearchLog10Lambda(ReinschSystem system, int n)
     {
-        // Coarse scan: keep the best point and its neighbours.
-        double bestX = double.NaN, bestScore = double.PositiveInfinity, lastValid = double.NaN;
-        int climbing = 0;
-        double highest = (4.0 * Math.Log10(n)) + 2.0;
-        for (double x = LowestLog10Lambda; x <= highest; x += ScanStep)
-        {
-            var p = system.Evaluate(Math.Pow(10.0, x), default);
-            if (!IsReliable(p, n))
+        var scan = new GcvScan(LowestLog10Lambda, ScanStep, (4.0 * Math.Log10(n)) + 2.0, double.NegativeInfinity);
+        var best = GcvSearch.MinimizeLog10Lambda(
+            x =>
             {
-                break;
-            }
-
-            lastValid = x;
-            if (p.Score < bestScore)
-            {
-                bestScore = p.Score;
-                bestX = x;
-            }
-
-            climbing = p.Score > ClimbFactor * bestScore ? climbing + 1 : 0;
-            if (climbing == 2)
-            {
-                break;
-            }
-
-            if (p.TraceA < StraightLineTrace)
-            {
-                break;
-            }
-        }
-
-        if (double.IsNaN(bestX))
-        {
-            throw new InvalidOperationException("No λ gave a usable smoothing system; the data cannot be smoothed.");
-        }
-
-        double Score(double x)
-        {
-            var p = system.Evaluate(Math.Pow(10.0, x), default);
-            return IsReliable(p, n) ? p.Score : double.MaxValue;
-        }
-
-        double upper = Math.Min(bestX + ScanStep, lastValid);
-        return upper <= bestX
-            ? bestX
-            : Brent.Minimize(Score, bestX - ScanStep, upper, bestX, bestScore, Log10Tolerance);
+                var p = system.Evaluate(Math.Pow(10.0, x), default);
+                return new GcvTrial(IsReliable(p, n), p.Score, p.TraceA);
+            },
+            scan);
+        return double.IsNaN(best)
+            ? throw new InvalidOperationException("No λ gave a usable smoothing system; the data cannot be smoothed.")
+            : best;
     }
 
     private static bool IsReliable(GcvPoint p, int n) =>

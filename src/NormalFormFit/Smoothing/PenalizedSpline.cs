@@ -1,3 +1,5 @@
+using NormalFormFit.Numerics;
+
 namespace NormalFormFit.Smoothing;
 
 /// <summary>
@@ -33,17 +35,15 @@ public sealed record PenalizedSplineFit(double Lambda, double EffectiveDegreesOf
 public static class PenalizedSpline
 {
     private const int Band = 3;
+
+    // GCV search over log₁₀ of the rescaled λ_P (GcvSearch): every decade from 10⁻⁴; the refinement stays within
+    // the scanned range.
     private const double LowestLog10Lambda = -4.0;
     private const double ScanStep = 1.0;
-    private const double Log10Tolerance = 1e-3;
 
     // Past λ_P ≈ 10¹² (penalty rescaled to O(1) per knot) the condition number of BᵀB + λDᵀD exceeds about
     // 10¹³ and the solution loses more than three digits: the scan stops there (kernel ≈ 10³ knot intervals).
     private const double HighestLog10Lambda = 12.0;
-
-    // GCV scores two scan points in a row above this multiple of the best: the signal is smoothed away
-    // (common practice, no source; the same rule as the exact spline's scan).
-    private const double ClimbFactor = 2.0;
 
     // The basis limits the fit when GCV spends more than this share of the coefficients (common practice, no source).
     private const double MaxEdfShare = 0.25;
@@ -128,44 +128,17 @@ public static class PenalizedSpline
 
     private static double Search(PenalizedSplineSystem system)
     {
-        double bestX = double.NaN, bestScore = double.PositiveInfinity, lastValid = double.NaN;
-        var climbing = 0;
-        for (var x = LowestLog10Lambda; x <= HighestLog10Lambda; x += ScanStep)
-        {
-            var p = system.Evaluate(Math.Pow(10.0, x), keepCoefficients: false);
-            if (!p.Valid)
+        var scan = new GcvScan(LowestLog10Lambda, ScanStep, HighestLog10Lambda, LowestLog10Lambda);
+        var best = GcvSearch.MinimizeLog10Lambda(
+            x =>
             {
-                break;
-            }
-
-            lastValid = x;
-            if (p.Score < bestScore)
-            {
-                bestScore = p.Score;
-                bestX = x;
-            }
-
-            climbing = p.Score > ClimbFactor * bestScore ? climbing + 1 : 0;
-            if (climbing == 2 || p.Trace < 2.001)
-            {
-                break;
-            }
-        }
-
-        if (double.IsNaN(bestX))
-        {
-            throw new InvalidOperationException("No λ gave a usable penalised spline; the data cannot be smoothed.");
-        }
-
-        double Score(double x)
-        {
-            var p = system.Evaluate(Math.Pow(10.0, x), keepCoefficients: false);
-            return p.Valid ? p.Score : double.MaxValue;
-        }
-
-        var upper = Math.Min(bestX + ScanStep, lastValid);
-        var lower = Math.Max(bestX - ScanStep, LowestLog10Lambda);
-        return upper <= bestX ? bestX : Brent.Minimize(Score, lower, upper, bestX, bestScore, Log10Tolerance);
+                var p = system.Evaluate(Math.Pow(10.0, x), keepCoefficients: false);
+                return new GcvTrial(p.Valid, p.Score, p.Trace);
+            },
+            scan);
+        return double.IsNaN(best)
+            ? throw new InvalidOperationException("No λ gave a usable penalised spline; the data cannot be smoothed.")
+            : best;
     }
 
     private static double Sq(double x) => x * x;

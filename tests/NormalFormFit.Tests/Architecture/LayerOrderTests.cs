@@ -29,33 +29,14 @@ public class LayerOrderTests
         ["NormalFormFit.Compare"] = 9,
     };
 
-    /// <summary>
-    /// Known references against the order, each to be removed by the change that fixes it (file, target namespace).
-    /// </summary>
-    private static readonly (string File, string Target)[] TemporarilyAllowed =
-    [
-        // GridSearch calls Smoothing.Brent: removed when Numerics owns Brent.
-        ("src/NormalFormFit/Numerics/GridSearch.cs", "NormalFormFit.Smoothing"),
-    ];
-
     [Fact]
     public void LibraryFiles_ReferOnlyToTheirOwnOrEarlierLayers()
     {
         var wrong = References("src/NormalFormFit")
             .Where(r => Layer(r.Namespace) is { } from && Layer(r.Target) is { } to && Order[to] > Order[from])
-            .Where(r => !TemporarilyAllowed.Contains((r.File, r.Target)))
             .ToList();
 
         Assert.True(wrong.Count == 0, "references against the layer order (" + OrderText() + "):\n" + string.Join('\n', wrong));
-    }
-
-    [Fact]
-    public void TemporarilyAllowedReferences_AreStillThere()
-    {
-        var found = References("src/NormalFormFit").Select(r => (r.File, r.Target)).ToHashSet();
-        var fixedAlready = TemporarilyAllowed.Where(a => !found.Contains(a)).ToList();
-
-        Assert.True(fixedAlready.Count == 0, "no longer needed, remove from TemporarilyAllowed: " + string.Join(", ", fixedAlready));
     }
 
     [Fact]

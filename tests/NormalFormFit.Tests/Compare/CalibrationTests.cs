@@ -130,7 +130,7 @@ public abstract class CompareCalibrationChecks(CompareCalibrationRepeats repeats
         {
             var values = repeats.Results.Select(c => c.Parameters.Append(c.Offset).Append(c.Scale).ElementAt(u).Value).ToList();
             var mean = values.Average();
-            var sem = NormalFormFit.Field.PhaseFieldEstimator.StandardDeviation(values) / Math.Sqrt(values.Count);
+            var sem = NormalFormFit.Numerics.SampleStatistics.StandardErrorOfMean(values);
             output.WriteLine($"parameter {u}: mean {mean:F5} ± {sem:F5} (truth {CompareCalibrationRepeats.Truth[u]})");
             Assert.InRange(CompareCalibrationRepeats.Truth[u], mean - (3 * sem), mean + (3 * sem));
         }

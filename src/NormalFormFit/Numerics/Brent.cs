@@ -1,9 +1,14 @@
-namespace NormalFormFit.Smoothing;
+namespace NormalFormFit.Numerics;
 
 /// <summary>
 /// Brent's minimiser without derivatives (golden section with parabolic steps; Brent 1973,
 /// "Algorithms for Minimization without Derivatives", ch. 5).
 /// </summary>
+/// <remarks>
+/// Finds a local minimum of f on [a, b]; superlinear near a smooth minimum, never slower than golden section
+/// (about 1.44 log₂((b − a)/tolerance) evaluations at worst), at most 200 evaluations. Needs one interior point
+/// whose value is below the ends' (a bracket); <see cref="GridSearch"/> provides one.
+/// </remarks>
 internal static class Brent
 {
     private static readonly double GoldenSection = 0.5 * (3.0 - Math.Sqrt(5.0));

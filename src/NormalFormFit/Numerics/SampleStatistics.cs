@@ -1,0 +1,47 @@
+namespace NormalFormFit.Numerics;
+
+/// <summary>
+/// The sample standard deviation s = √(Σ(xᵢ − x̄)²/(n − 1)) (Bessel's correction) and the standard error of the
+/// mean s/√n (any statistics text, e.g. Taylor, An Introduction to Error Analysis, 2nd ed., 1997, §4.2 and §4.4).
+/// </summary>
+/// <remarks>
+/// <see cref="StandardDeviation"/> takes two passes (mean, then squared deviations), which keeps the digits that the
+/// one-pass formula Σx² − (Σx)²/n loses when the mean is large against the spread (Chan, Golub &amp; LeVeque 1983);
+/// <see cref="StandardDeviationFromSums"/> is that one-pass formula for sums kept in a running loop. Need two values;
+/// NaN otherwise. O(n).
+/// </remarks>
+internal static class SampleStatistics
+{
+    /// <summary>The sample standard deviation (n − 1 in the denominator); NaN for fewer than two values.</summary>
+    public static double StandardDeviation(IReadOnlyList<double> xs)
+    {
+        ArgumentNullException.ThrowIfNull(xs);
+        if (xs.Count < 2)
+        {
+            return double.NaN;
+        }
+
+        var mean = xs.Average();
+        var ss = 0.0;
+        foreach (var x in xs)
+        {
+            ss += (x - mean) * (x - mean);
+        }
+
+        return Math.Sqrt(ss / (xs.Count - 1));
+    }
+
+    /// <summary>The standard error of the mean, s/√n; NaN for fewer than two values.</summary>
+    public static double StandardErrorOfMean(IReadOnlyList<double> xs)
+    {
+        ArgumentNullException.ThrowIfNull(xs);
+        return StandardDeviation(xs) / Math.Sqrt(xs.Count);
+    }
+
+    /// <summary>
+    /// The sample standard deviation from running sums, √(max(0, (Σx² − (Σx)²/n)/(n − 1))); NaN for fewer than two
+    /// values. Use only when the values are not kept and the mean is not large against the spread.
+    /// </summary>
+    public static double StandardDeviationFromSums(double sum, double sumOfSquares, int count) =>
+        count >= 2 ? Math.Sqrt(Math.Max(0, (sumOfSquares - (sum * sum / count)) / (count - 1))) : double.NaN;
+}
