@@ -1,4 +1,3 @@
-using System.Collections.Frozen;
 using NormalFormFit.Analysis;
 using NormalFormFit.Ingest;
 using NormalFormFit.Onset;
@@ -106,13 +105,13 @@ public static class WireNames
     private sealed class Names<T>
         where T : struct, Enum
     {
-        private readonly FrozenDictionary<T, string> byValue;
-        private readonly FrozenDictionary<string, T> byName;
+        private readonly Dictionary<T, string> byValue;
+        private readonly Dictionary<string, T> byName;
 
         public Names(params (T Value, string Name)[] pairs)
         {
-            byValue = pairs.ToFrozenDictionary(p => p.Value, p => p.Name);
-            byName = pairs.ToFrozenDictionary(p => p.Name, p => p.Value, StringComparer.Ordinal);
+            byValue = pairs.ToDictionary(p => p.Value, p => p.Name);
+            byName = pairs.DistinctBy(p => p.Name, StringComparer.Ordinal).ToDictionary(p => p.Name, p => p.Value, StringComparer.Ordinal);
             var missing = Enum.GetValues<T>().Where(v => !byValue.ContainsKey(v)).ToList();
             if (missing.Count > 0 || byName.Count != pairs.Length)
             {
