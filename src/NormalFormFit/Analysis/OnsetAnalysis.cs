@@ -13,6 +13,22 @@ public static class OnsetAnalysis
     /// <summary>Minimum turning runs for an answer.</summary>
     public const int MinimumRuns = 3;
 
+    /// <summary>Minimum runs with timed periods for the scaling law (three parameters and one degree of freedom).</summary>
+    public const int MinimumScalingRuns = 4;
+
+    /// <summary>A resting run's relaxation rate is used only when its standard error is below this fraction of it.</summary>
+    public const double MaximumRelativeRateError = 0.5;
+
+    /// <summary>Runs below onset are kept in the period route only within this many combined standard errors of its trend.</summary>
+    public const double BelowOnsetTrendTolerance = 4.0;
+
+    /// <summary>
+    /// A route's law misfits when χ²/dof exceeds this multiple of the 0.999 quantile of χ²/dof (common practice, no
+    /// source: it never fired in the 800 calibration fits, where correct laws reached 10.7, and fires on near-noise-free
+    /// spike times fitted by a law of the wrong shape).
+    /// </summary>
+    public const double LawMisfitFactor = 4.0;
+
     /// <summary>Analyses a set of run results.</summary>
     /// <remarks>
     /// Noise-dominated runs are left out of both routes while three runs remain. Runs below onset enter the period route
@@ -112,7 +128,7 @@ public static class OnsetAnalysis
     /// </summary>
     private static OnsetEstimate WithRunsBelowOnset(IReadOnlyList<RunResult> runs, OnsetEstimate fromT, List<TrendPoint> tPoints, List<Diagnostic> diags)
     {
-        var resting = runs.Where(r => !r.IsTurning && r.Relaxation is { } x && x.Rate.StandardError > 0 && x.Rate.StandardError < 0.5 * x.Rate.Value).ToList();
+        var resting = runs.Where(r => !r.IsTurning && r.Relaxation is { } x && x.Rate.StandardError > 0 && x.Rate.StandardError < MaximumRelativeRateError * x.Rate.Value).ToList();
         if (resting.Count == 0 || !fromT.IsAvailable || fromT.Curve is not { } tt || tPoints.Count < MinimumRuns)
         {
             return fromT;
@@ -134,7 +150,7 @@ public static class OnsetAnalysis
         // The square-root law has no place for a relaxation rate (no period): with runs below onset the route
         // uses the polynomial trend through them, which brackets the onset instead of extrapolating to it.
         var withBelow = TrendFit.Root(OnsetRoute.Period, tPoints, belowOnset: extra);
-        if (withBelow.IsAvailable && withBelow.Trend is { } wt && extra.All(p => Math.Abs(p.Y - wt.Evaluate(p.Mu)) <= 4 * Math.Sqrt((p.StandardError * p.StandardError * Math.Max(wt.ReducedChiSquare, 1)) + wt.Variance(p.Mu))))
+        if (withBelow.IsAvailable && withBelow.Trend is { } wt && extra.All(p => Math.Abs(p.Y - wt.Evaluate(p.Mu)) <= BelowOnsetTrendTolerance * Math.Sqrt((p.StandardError * p.StandardError * Math.Max(wt.ReducedChiSquare, 1)) + wt.Variance(p.Mu))))
         {
             diags.Add(new Diagnostic(Severity.Info, "runs-below-onset", string.Create(CultureInfo.InvariantCulture,
                 $"{extra.Count} run(s) below onset enter the period route through their relaxation rate (−κ²/4π² continues T⁻²)")));
@@ -153,7 +169,7 @@ public static class OnsetAnalysis
             .Where(r => r.IsTurning && !noisy.Contains(r) && r.Period is { } p && double.IsFinite(p.Measured.StandardError))
             .Select(r => new PeriodPoint(r.Param, r.Period!.Measured.Value, r.Period.Measured.StandardError))
             .ToList();
-        if (periodPoints.Count < 4)
+        if (periodPoints.Count < MinimumScalingRuns)
         {
             periodPoints = runs
                 .Where(r => r.IsTurning && r.Period is { } p && double.IsFinite(p.Measured.StandardError))
@@ -196,7 +212,7 @@ public static class OnsetAnalysis
         }
 
         var dof = curve.DegreesOfFreedom;
-        var limit = 4.0 * MathNet.Numerics.Distributions.ChiSquared.InvCDF(dof, 0.999) / dof;
+        var limit = LawMisfitFactor * MathNet.Numerics.Distributions.ChiSquared.InvCDF(dof, 0.999) / dof;
         return curve.ReducedChiSquare <= limit ? null : new Diagnostic(Severity.Warning, "law-misfit", string.Create(CultureInfo.InvariantCulture,
             $"the {est.Route.Noun()} route's law ({curve.Description}) misses its runs by far more than their errors allow (χ²/dof = {curve.ReducedChiSquare:G3} on {dof} degrees of freedom, above {limit:G3}): its interval is widened by √(χ²/dof), but a law of the wrong shape can be biased beyond that, so read the interval as too narrow and compare with the other route"));
     }
