@@ -1,13 +1,12 @@
 using System.CommandLine;
-using System.Reflection;
 
 namespace NormalFormFit.Cli;
 
 /// <summary>The command line: wires stages together and turns diagnostics into messages and exit codes.</summary>
 internal static class NffitApp
 {
-    public static string Version =>
-        typeof(NffitApp).Assembly.GetCustomAttribute<AssemblyInformationalVersionAttribute>()?.InformationalVersion.Split('+')[0] ?? "0";
+    /// <summary>The package version written as <c>tool_version</c> into every report (see <see cref="ToolVersion"/>).</summary>
+    public static string Version => ToolVersion.Package;
 
     /// <summary>Runs the tool with injected writers; returns the exit code. Never throws.</summary>
     public static int Run(string[] args, TextWriter stdout, TextWriter stderr)
@@ -22,6 +21,7 @@ internal static class NffitApp
                 CompareCommand.Create(stdout, stderr),
                 CombineCommand.Create(stdout, stderr),
             };
+            ToolVersion.Install(root, stdout);
             var parsed = root.Parse(args);
             if (parsed.Errors.Count > 0)
             {
