@@ -34,7 +34,9 @@ public sealed record Trajectory(double[] Time, double[] Phase, int[] SegmentStar
     /// the recording says it is already unwrapped. Across a gap (a step longer than <see cref="GapStep"/> typical
     /// steps: missing rows) the turn count is chosen to continue the motion: the advance over the gap is predicted by
     /// the advance over the same stretch of time one revolution earlier (the local revolution time T is the duration
-    /// of the last whole turn), or by the mean speed so far before a whole turn has been seen. A gap longer than
+    /// of the last whole turn). Before a whole turn has been seen, T is 2π over the mean speed between gaps, and the
+    /// advance is the recorded change taken forward into [−<see cref="ForwardSlack"/>, 2π − <see cref="ForwardSlack"/>):
+    /// over less than a turn's time a phase that moves forward advances by less than a turn. A gap longer than
     /// <see cref="MaxGapFraction"/>·T cannot be followed: it starts a new segment, and across it the turn count
     /// continues the mean speed. A run at rest (T infinite) is followed across any gap. Segments given by the
     /// recording stay separate. Orients so the phase increases. O(n log n) at worst (a binary search per gap).
@@ -51,6 +53,7 @@ public sealed record Trajectory(double[] Time, double[] Phase, int[] SegmentStar
         var given = recording.SegmentStarts;
         var starts = new List<int>();
         var typical = TypicalStep(t);
+        var meanSpeed = MeanSpeedBetweenGaps(recording, typical);
         var offset = 0.0;
         var large = 0;
         int bridged = 0, split = 0;
@@ -92,10 +95,8 @@ public sealed record Trajectory(double[] Time, double[] Phase, int[] SegmentStar
                 }
                 else
                 {
-                    var up = phase[i - 1] >= phase[segStart];
+                    var up = meanSpeed >= 0;
                     var revolution = up ? upLast - upPrev : downLast - downPrev;
-                    var span = t[i - 1] - t[segStart];
-                    var meanSpeed = span > 0 ? (phase[i - 1] - phase[segStart]) / span : 0.0;
                     var local = double.IsFinite(revolution) ? revolution : meanSpeed != 0 ? twoPi / Math.Abs(meanSpeed) : double.PositiveInfinity;
                     if (dt > MaxGapFraction * local)
                     {
@@ -119,7 +120,12 @@ public sealed record Trajectory(double[] Time, double[] Phase, int[] SegmentStar
                     }
                     else
                     {
-                        advance = meanSpeed * dt;
+                        // No whole turn seen yet: over less than half a turn's time the phase moves forward by less
+                        // than a turn, so the advance is the recorded change taken into [−slack, 2π − slack) forward.
+                        var sense = up ? 1.0 : -1.0;
+                        var forward = sense * d;
+                        forward -= twoPi * Math.Floor((forward + ForwardSlack) / twoPi);
+                        advance = sense * forward;
                     }
 
                     var predicted = phase[i - 1] + advance;
@@ -156,6 +162,43 @@ public sealed record Trajectory(double[] Time, double[] Phase, int[] SegmentStar
         }
 
         return new Trajectory((double[])t.Clone(), phase, [.. starts], direction, large) { BridgedGaps = bridged, SplitGaps = split };
+    }
+
+    /// <summary>
+    /// How far (radians) the phase may seem to move backwards across a gap, before a whole turn has been seen, and still
+    /// be read as noise rather than as most of a turn forward.
+    /// </summary>
+    public const double ForwardSlack = 0.3;
+
+    /// <summary>
+    /// Mean phase speed over the steps that are not gaps (each taken modulo a turn unless the recording is unwrapped):
+    /// the sense of motion and the revolution time before a whole turn has been seen. O(n).
+    /// </summary>
+    private static double MeanSpeedBetweenGaps(PhaseRecording recording, double typical)
+    {
+        var t = recording.Time;
+        var raw = recording.Phase;
+        var twoPi = 2.0 * Math.PI;
+        double advance = 0, time = 0;
+        for (var k = 0; k < recording.SegmentStarts.Length; k++)
+        {
+            var s = recording.SegmentStarts[k];
+            var e = k + 1 < recording.SegmentStarts.Length ? recording.SegmentStarts[k + 1] : t.Length;
+            for (var i = s + 1; i < e; i++)
+            {
+                var dt = t[i] - t[i - 1];
+                if (dt > GapStep * typical)
+                {
+                    continue;
+                }
+
+                var d = raw[i] - raw[i - 1];
+                advance += recording.Unwrapped ? d : d - (twoPi * Math.Round(d / twoPi));
+                time += dt;
+            }
+        }
+
+        return time > 0 ? advance / time : 0.0;
     }
 
     /// <summary>The phase at sample <paramref name="s"/> that continues the mean speed of everything before it (its own value when nothing precedes).</summary>
