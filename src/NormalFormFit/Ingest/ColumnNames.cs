@@ -64,13 +64,20 @@ public static class ColumnNames
     /// <summary>Time units: normalised name → seconds per unit (SI prefixes of the second, and minutes and hours).</summary>
     public static IReadOnlyDictionary<string, double> TimeUnits { get; } = new Dictionary<string, double>(StringComparer.Ordinal)
     {
-        ["s"] = 1, ["ms"] = 1e-3, ["us"] = 1e-6, ["ns"] = 1e-9, ["min"] = 60, ["h"] = 3600,
+        ["s"] = 1,
+        ["ms"] = 1e-3,
+        ["us"] = 1e-6,
+        ["ns"] = 1e-9,
+        ["min"] = 60,
+        ["h"] = 3600,
     };
 
     /// <summary>Phase units: normalised name → unit.</summary>
     public static IReadOnlyDictionary<string, PhaseUnit> PhaseUnits { get; } = new Dictionary<string, PhaseUnit>(StringComparer.Ordinal)
     {
-        ["rad"] = PhaseUnit.Radians, ["deg"] = PhaseUnit.Degrees, ["turns"] = PhaseUnit.Turns,
+        ["rad"] = PhaseUnit.Radians,
+        ["deg"] = PhaseUnit.Degrees,
+        ["turns"] = PhaseUnit.Turns,
     };
 
     /// <summary>Position units, normalised names.</summary>
@@ -79,17 +86,55 @@ public static class ColumnNames
     // Spellings → normalised unit.
     private static readonly Dictionary<string, string> UnitSpellings = new(StringComparer.Ordinal)
     {
-        ["s"] = "s", ["sec"] = "s", ["secs"] = "s", ["second"] = "s", ["seconds"] = "s",
-        ["ms"] = "ms", ["msec"] = "ms", ["millisecond"] = "ms", ["milliseconds"] = "ms",
-        ["us"] = "us", ["µs"] = "us", ["μs"] = "us", ["usec"] = "us", ["microsecond"] = "us", ["microseconds"] = "us",
-        ["ns"] = "ns", ["nanosecond"] = "ns", ["nanoseconds"] = "ns",
-        ["min"] = "min", ["minute"] = "min", ["minutes"] = "min",
-        ["h"] = "h", ["hr"] = "h", ["hour"] = "h", ["hours"] = "h",
-        ["rad"] = "rad", ["radian"] = "rad", ["radians"] = "rad",
-        ["deg"] = "deg", ["degree"] = "deg", ["degrees"] = "deg", ["°"] = "deg",
-        ["turn"] = "turns", ["turns"] = "turns", ["rev"] = "turns", ["revs"] = "turns", ["cycles"] = "turns",
-        ["px"] = "px", ["pix"] = "px", ["pixel"] = "px", ["pixels"] = "px",
-        ["mm"] = "mm", ["cm"] = "cm", ["m"] = "m", ["um"] = "um", ["µm"] = "um", ["μm"] = "um", ["in"] = "in", ["au"] = "au",
+        ["s"] = "s",
+        ["sec"] = "s",
+        ["secs"] = "s",
+        ["second"] = "s",
+        ["seconds"] = "s",
+        ["ms"] = "ms",
+        ["msec"] = "ms",
+        ["millisecond"] = "ms",
+        ["milliseconds"] = "ms",
+        ["us"] = "us",
+        ["µs"] = "us",
+        ["μs"] = "us",
+        ["usec"] = "us",
+        ["microsecond"] = "us",
+        ["microseconds"] = "us",
+        ["ns"] = "ns",
+        ["nanosecond"] = "ns",
+        ["nanoseconds"] = "ns",
+        ["min"] = "min",
+        ["minute"] = "min",
+        ["minutes"] = "min",
+        ["h"] = "h",
+        ["hr"] = "h",
+        ["hour"] = "h",
+        ["hours"] = "h",
+        ["rad"] = "rad",
+        ["radian"] = "rad",
+        ["radians"] = "rad",
+        ["deg"] = "deg",
+        ["degree"] = "deg",
+        ["degrees"] = "deg",
+        ["°"] = "deg",
+        ["turn"] = "turns",
+        ["turns"] = "turns",
+        ["rev"] = "turns",
+        ["revs"] = "turns",
+        ["cycles"] = "turns",
+        ["px"] = "px",
+        ["pix"] = "px",
+        ["pixel"] = "px",
+        ["pixels"] = "px",
+        ["mm"] = "mm",
+        ["cm"] = "cm",
+        ["m"] = "m",
+        ["um"] = "um",
+        ["µm"] = "um",
+        ["μm"] = "um",
+        ["in"] = "in",
+        ["au"] = "au",
     };
 
     /// <summary>Reads one header name. Never throws.</summary>

@@ -129,7 +129,8 @@ public static class OrbitPhase
                 ? $"they cover {visited} of 12 sectors of 30° round the fitted ellipse"
                 : $"the angle round the fitted ellipse jumps by {typicalStep:G3} rad between neighbouring samples in the median";
             diags.Add(NoOrbit(positions.File, string.Create(ic,
-                $"the positions do not wind round an orbit ({why}); expected a marker going round, or a run at rest beside runs that turn: check the x and y columns (a single signal against time is not a position pair)")) with { Code = "no-winding" });
+                $"the positions do not wind round an orbit ({why}); expected a marker going round, or a run at rest beside runs that turn: check the x and y columns (a single signal against time is not a position pair)")) with
+            { Code = "no-winding" });
             return (null, null, diags);
         }
 
