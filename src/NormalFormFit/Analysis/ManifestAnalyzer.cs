@@ -155,7 +155,8 @@ public static class ManifestAnalyzer
             return new Loaded<UnitPlan>(new UnitPlan(null, options), []);
         }
 
-        var unknown = Array.FindIndex(found, u => u is null);
+        // A missing file names no unit either; reading it reports that, not a mix of units.
+        var unknown = Enumerable.Range(0, found.Length).FirstOrDefault(i => found[i] is null && File.Exists(fullPaths[i]), -1);
         if (unknown >= 0)
         {
             var named = Array.FindIndex(found, u => u is not null);
@@ -168,7 +169,7 @@ public static class ManifestAnalyzer
         var diags = new List<Diagnostic>();
         for (var i = 0; i < entries.Count; i++)
         {
-            var factor = ColumnNames.SecondsPer(found[i]) / ColumnNames.SecondsPer(target);
+            var factor = found[i] is null ? 1.0 : ColumnNames.SecondsPer(found[i]) / ColumnNames.SecondsPer(target);
             options[i] = read with { TimeScale = double.IsFinite(factor) ? factor : 1.0, TimeUnit = target };
         }
 

@@ -249,4 +249,21 @@ public class RecordingSanityTests
         Assert.Equal("mixed-time-units", e.Code);
         Assert.Contains("does not name a unit", e.Message, StringComparison.Ordinal);
     }
+
+    [Fact]
+    public void AMissingRunFile_AmongRunsWithTimeUnits_IsReportedAsMissing_NotAsAMixOfUnits()
+    {
+        using var files = new RecordingFiles();
+        for (var k = 0; k < 2; k++)
+        {
+            var sim = Simulator.Run(BuiltInModels.Rotor, new SimulationOptions { Mu = 1.1 + (0.1 * k), Revolutions = 3, SamplingInterval = 0.05, Seed = 5 + k });
+            files.AddRun($"r{k}.csv", 1.1 + (0.1 * k), "time_s,theta", sim.Time, sim.Phase);
+        }
+
+        var manifest = files.WriteManifest();
+        File.AppendAllText(manifest, "absent.csv,1.5\n");
+        var set = ManifestAnalyzer.AnalyzeRuns(manifest);
+        Assert.Contains(set.Diagnostics, d => d.Code == "missing-file");
+        Assert.DoesNotContain(set.Diagnostics, d => d.Code == "mixed-time-units");
+    }
 }
