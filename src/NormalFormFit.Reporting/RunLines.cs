@@ -33,7 +33,7 @@ public static class RunLines
         {
             using (var w = new Utf8JsonWriter(stream, JsonConventions.Writer(indented: false)))
             {
-                JsonSerializer.Serialize(w, RunLineDto.From(run, Schema, set.ParamUnits), JsonConventions.Options);
+                JsonSerializer.Serialize(w, RunLineDto.From(run, Schema, set), JsonConventions.Options);
             }
 
             stream.Write(NewLine);
@@ -48,7 +48,7 @@ public static class RunLines
     {
         ArgumentNullException.ThrowIfNull(paths);
         var runs = new List<RunResult>();
-        string? units = null;
+        string? units = null, timeUnit = null, paramName = null;
         foreach (var path in paths)
         {
             if (!System.IO.File.Exists(path))
@@ -68,13 +68,15 @@ public static class RunLines
                         continue;
                     }
 
-                    if (ReadLine(line, out var lineUnits) is not { } run)
+                    if (ReadLine(line, out var lineUnits, out var lineTime, out var lineName) is not { } run)
                     {
                         return Loaded.Fail<RunSet>(BadLine(path, lineNumber, $"the line is not a run result of layout '{Schema}' or '{SchemaV1}'"));
                     }
 
                     runs.Add(run);
                     units ??= lineUnits;
+                    timeUnit ??= lineTime;
+                    paramName ??= lineName;
                 }
             }
             catch (JsonException e)
@@ -97,12 +99,14 @@ public static class RunLines
                 "the files hold no run results; give files written by 'nffit analyze --runs-only'", paths.Count > 0 ? paths[0] : null));
         }
 
-        return new Loaded<RunSet>(new RunSet(runs, units), []);
+        return new Loaded<RunSet>(new RunSet(runs, units) { TimeUnit = timeUnit, ParamName = paramName }, []);
     }
 
     /// <summary>The run of one line, by its layout; null when the line is not an object with a known <c>schema</c>.</summary>
-    private static RunResult? ReadLine(string line, out string? units)
+    private static RunResult? ReadLine(string line, out string? units, out string? timeUnit, out string? paramName)
     {
+        timeUnit = null;
+        paramName = null;
         using var doc = JsonDocument.Parse(line);
         var root = doc.RootElement;
         units = null;
@@ -114,6 +118,8 @@ public static class RunLines
             case Schema:
                 var current = root.Deserialize<RunLineDto>(JsonConventions.Options)!;
                 units = current.ParamUnits;
+                timeUnit = current.TimeUnit;
+                paramName = current.ParamName;
                 return current.ToRunResult();
             case SchemaV1:
                 var earlier = root.Deserialize<RunLineV1Dto>(JsonConventions.Options)!;

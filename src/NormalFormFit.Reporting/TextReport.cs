@@ -21,7 +21,9 @@ public static class TextReport
         ArgumentNullException.ThrowIfNull(report);
         var sb = new StringBuilder();
         var u = report.ParamUnits is null ? string.Empty : " " + report.ParamUnits;
-        sb.AppendLine("Onset (95% intervals)");
+        sb.AppendLine(report.ParamName is null && report.TimeUnit is null
+            ? "Onset (95% intervals)"
+            : $"Onset (95% intervals; μ is {report.ParamName ?? "the control parameter"}{(report.ParamUnits is null ? string.Empty : " in " + report.ParamUnits)}, time in {report.TimeUnit ?? "the runs' units"})");
         sb.AppendLine(Onset("  from bottleneck (a → 0):  ", report.FromBottleneck, u));
         sb.AppendLine(Onset("  from period   (T⁻² → 0):  ", report.FromPeriod, u));
         RouteCaveats(sb, report);
@@ -42,7 +44,11 @@ public static class TextReport
 
         NextRuns(sb, report, u);
         sb.AppendLine();
-        var header = new[] { "param", "θ*", "a", "±", "b", "±", "T meas", "±", "π/√(ab)", "∮dθ/θ̇", "revs", "κ rest", "D", "flags" };
+        // Units in the column heads when known: μ, a (rad per time unit), periods (time unit), κ (per time unit).
+        var tu = report.TimeUnit is { } unit ? $" ({unit})" : string.Empty;
+        var perT = report.TimeUnit is { } unit2 ? $" (/{unit2})" : string.Empty;
+        var pu = report.ParamUnits is { } unit3 ? $" ({unit3})" : string.Empty;
+        var header = new[] { "param" + pu, "θ*", "a" + perT, "±", "b" + perT, "±", "T meas" + tu, "±", "π/√(ab)", "∮dθ/θ̇", "revs", "κ rest" + perT, "D", "flags" };
         var rows = new List<string[]> { header };
         foreach (var r in report.Runs)
         {
@@ -78,6 +84,19 @@ public static class TextReport
             }
 
             sb.AppendLine(line.ToString().TrimEnd());
+        }
+
+        var dropped = report.Runs.Where(r => r.Dropped.Total > 0).ToList();
+        if (dropped.Count > 0)
+        {
+            sb.AppendLine();
+            sb.AppendLine("Rows not used (blank or non-finite; below the quality threshold; off the orbit; isolated phase jumps)");
+            foreach (var r in dropped)
+            {
+                var d = r.Dropped;
+                sb.AppendLine(string.Create(Inv,
+                    $"  {G(r.Param, 6)}: {d.Total} of {r.Samples + d.Total} rows: {d.Blank} blank, {d.LowQuality} low quality, {d.OffOrbit} off the orbit, {d.PhaseJumps} phase jumps"));
+            }
         }
 
         var orbits = report.Runs.Where(r => r.Orbit is not null).ToList();
@@ -140,7 +159,7 @@ public static class TextReport
         sb.AppendLine("Next measurements (where new runs shrink the onset interval most)");
         foreach (var m in report.NextMeasurements)
         {
-            var period = double.IsFinite(m.ExpectedPeriod) ? string.Create(Inv, $", period about {m.ExpectedPeriod:G3}") : string.Empty;
+            var period = double.IsFinite(m.ExpectedPeriod) ? string.Create(Inv, $", period about {m.ExpectedPeriod:G3}{(report.TimeUnit is { } tu ? " " + tu : string.Empty)}") : string.Empty;
             // Digits to the second significant figure of the interval's implied standard error (width / 3.92).
             var now = ReportNumbers.Interval(m.CurrentCi95, m.CurrentCi95.Width / 3.92);
             var then = ReportNumbers.Interval(m.ExpectedCi95, m.ExpectedCi95.Width / 3.92);

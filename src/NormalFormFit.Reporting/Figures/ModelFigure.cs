@@ -25,7 +25,7 @@ public static partial class ReportFigures
         FigureFonts.Register();
         var evaluator = expression.CreateEvaluator();
         var pars = comparison.Parameters.Select(p => p.Value).ToArray();
-        var plot = NewPlot("Reconstructed fields and the fitted model", "phase θ (rad)", "dθ/dt (rad per time unit)");
+        var plot = NewPlot("Reconstructed fields and the fitted model", "phase θ (rad)", $"dθ/dt (rad per {TimeUnit(report)})");
         for (var i = 0; i < runs.Count; i++)
         {
             var r = runs[i];
@@ -33,7 +33,7 @@ public static partial class ReportFigures
             var (xs, values) = FieldWithBand(plot, r.Field!, Math.PI, colour);
             var marks = plot.Add.ScatterPoints(xs, values, colour);
             marks.MarkerSize = 4;
-            marks.LegendText = "μ = " + G(r.Param, 6);
+            marks.LegendText = ParamValue(report, r.Param);
 
             // The run's phase was oriented to increase; the model is compared in that orientation, s·f(s·θ).
             var s = r.Direction < 0 ? -1.0 : 1.0;

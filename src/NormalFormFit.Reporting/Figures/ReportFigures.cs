@@ -67,8 +67,23 @@ public static partial class ReportFigures
     }
 
     /// <summary>Label of the control parameter with its units.</summary>
-    internal static string ParamLabel(AnalysisReport report) =>
-        report.ParamUnits is { Length: > 0 } u ? $"control parameter μ ({u})" : "control parameter μ";
+    internal static string ParamLabel(AnalysisReport report)
+    {
+        var name = report.ParamName is { Length: > 0 } n ? $"{n} μ" : "control parameter μ";
+        return report.ParamUnits is { Length: > 0 } u ? $"{name} ({u})" : name;
+    }
+
+    /// <summary>"μ = 1.05 V" for a legend: the value with the parameter's unit when known.</summary>
+    internal static string ParamValue(AnalysisReport report, double value) =>
+        "μ = " + G(value, 6) + (report.ParamUnits is { Length: > 0 } u ? " " + u : string.Empty);
+
+    private static string Unit(string? unit) => unit is { Length: > 0 } u ? " " + u : string.Empty;
+
+    /// <summary>The unit of time for "per …" (the unit, or "time unit" when unknown).</summary>
+    internal static string TimeUnit(AnalysisReport report) => report.TimeUnit is { Length: > 0 } u ? u : "time unit";
+
+    /// <summary>The unit of time for a period axis (the unit, or "time units" when unknown).</summary>
+    internal static string TimeUnits(AnalysisReport report) => report.TimeUnit is { Length: > 0 } u ? u : "time units";
 
     /// <summary>Figure 1: θ̇(θ) of every run, 95% band, fitted parabola over the fit window.</summary>
     internal static Figure? Field(AnalysisReport report)
@@ -79,7 +94,7 @@ public static partial class ReportFigures
             return null;
         }
 
-        var plot = NewPlot("Phase velocity of every run", "phase θ (rad)", "dθ/dt (rad per time unit)");
+        var plot = NewPlot("Phase velocity of every run", "phase θ (rad)", $"dθ/dt (rad per {TimeUnit(report)})");
 
         // Centre the view on the runs' bottleneck (circular mean of θ*), so the slow part sits mid-plot unbroken.
         var stars = runs.Where(r => r.Bottleneck is not null).Select(r => r.Bottleneck!.Phase.Value).ToList();
@@ -91,7 +106,7 @@ public static partial class ReportFigures
             var (xs, values) = FieldWithBand(plot, r.Field!, centre, colour);
             var line = plot.Add.ScatterLine(xs, values, colour);
             line.LineWidth = 1.6f;
-            line.LegendText = "μ = " + G(r.Param, 6);
+            line.LegendText = ParamValue(report, r.Param);
         }
 
         // Parabolas last, so they are drawn over every field and listed last in the legend.
@@ -156,8 +171,8 @@ public static partial class ReportFigures
 
         var colour = bottleneckRoute ? FigurePalette.Field : FigurePalette.Period;
         var plot = bottleneckRoute
-            ? NewPlot("Minimum speed a against the control parameter", ParamLabel(report), "a (rad per time unit)")
-            : NewPlot("Inverse squared period against the control parameter", ParamLabel(report), "T⁻² (per time unit²)");
+            ? NewPlot("Minimum speed a against the control parameter", ParamLabel(report), $"a (rad per {TimeUnit(report)})")
+            : NewPlot("Inverse squared period against the control parameter", ParamLabel(report), $"T⁻² (per {TimeUnit(report)}²)");
 
         // x range: the data and both onset intervals where finite.
         var xs = pts.Select(p => p.Mu).ToList();
@@ -210,8 +225,8 @@ public static partial class ReportFigures
         var yMax = pts.Max(p => p.Y + Finite(p.S));
         var yMin = Math.Min(0, pts.Min(p => p.Y - Finite(p.S)));
         var span = Math.Max(yMax - yMin, 1e-12);
-        OnsetMarker(plot, report.FromBottleneck, FigurePalette.Field, MarkerShape.FilledCircle, 0.04 * span, xMin - pad, xMax + pad, "onset from a → 0");
-        OnsetMarker(plot, report.FromPeriod, FigurePalette.Period, MarkerShape.FilledSquare, -0.04 * span, xMin - pad, xMax + pad, "onset from T⁻² → 0");
+        OnsetMarker(plot, report.FromBottleneck, FigurePalette.Field, MarkerShape.FilledCircle, 0.04 * span, xMin - pad, xMax + pad, "onset from a → 0", report.ParamUnits);
+        OnsetMarker(plot, report.FromPeriod, FigurePalette.Period, MarkerShape.FilledSquare, -0.04 * span, xMin - pad, xMax + pad, "onset from T⁻² → 0", report.ParamUnits);
 
         plot.Axes.SetLimitsX(xMin - pad, xMax + pad);
         plot.ShowLegend(Alignment.UpperLeft);
@@ -244,7 +259,7 @@ public static partial class ReportFigures
             return null;
         }
 
-        var plot = NewPlot("Scaling of the period near onset", $"|μ − μc| ({UnitsOr(report, "parameter units")}, log scale)", "period T (time units, log scale)");
+        var plot = NewPlot("Scaling of the period near onset", $"|μ − μc| ({UnitsOr(report, "parameter units")}, log scale)", $"period T ({TimeUnits(report)}, log scale)");
         var lx = pts.Select(p => Math.Log10(p.D)).ToArray();
         var ly = pts.Select(p => Math.Log10(p.T)).ToArray();
         var ls = pts.Select(p => Finite(p.S) / (p.T * Math.Log(10))).ToArray();
@@ -289,7 +304,7 @@ public static partial class ReportFigures
             return null;
         }
 
-        var plot = NewPlot("Measured and predicted periods", ParamLabel(report), "period T (time units)");
+        var plot = NewPlot("Measured and predicted periods", ParamLabel(report), $"period T ({TimeUnits(report)})");
         var mu = runs.Select(r => r.Param).ToArray();
         var measured = runs.Select(r => r.Period!.Measured.Value).ToArray();
         var bars = plot.Add.ErrorBar(mu, measured, runs.Select(r => Finite(r.Period!.Measured.StandardError)).ToArray());
@@ -331,7 +346,7 @@ public static partial class ReportFigures
             return null;
         }
 
-        var plot = NewPlot("Residuals of the bottleneck fits", "θ − θ* (rad)", "dθ/dt − (a + b(θ−θ*)²) (rad per time unit)");
+        var plot = NewPlot("Residuals of the bottleneck fits", "θ − θ* (rad)", $"dθ/dt − (a + b(θ−θ*)²) (rad per {TimeUnit(report)})");
         var zero = plot.Add.HorizontalLine(0, 1, FigurePalette.Reference, LinePattern.Solid);
         zero.LineWidth = 1;
         var shapes = new[] { MarkerShape.FilledCircle, MarkerShape.FilledSquare, MarkerShape.FilledTriangleUp, MarkerShape.FilledDiamond, MarkerShape.OpenCircle, MarkerShape.OpenSquare };
@@ -347,7 +362,7 @@ public static partial class ReportFigures
             sc.MarkerShape = shapes[i % shapes.Length];
             sc.MarkerSize = 7;
             sc.LineWidth = 1;
-            sc.LegendText = "μ = " + G(runs[i].Param, 6);
+            sc.LegendText = ParamValue(report, runs[i].Param);
         }
 
         plot.ShowLegend(Edge.Right);
@@ -357,7 +372,7 @@ public static partial class ReportFigures
             "too wide for a parabola.", plot);
     }
 
-    private static void OnsetMarker(Plot plot, OnsetEstimate e, Color colour, MarkerShape shape, double y, double xMin, double xMax, string label)
+    private static void OnsetMarker(Plot plot, OnsetEstimate e, Color colour, MarkerShape shape, double y, double xMin, double xMax, string label, string? unit = null)
     {
         if (!e.IsAvailable)
         {
@@ -370,7 +385,7 @@ public static partial class ReportFigures
         bar.Color = colour;
         bar.LineWidth = 4;
         var dot = plot.Add.Marker(e.Value, y, shape, 12, colour);
-        dot.LegendText = $"{label}: {ReportNumbers.WithError(e.Value, e.StandardError)}, 95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}";
+        dot.LegendText = $"{label}: {ReportNumbers.WithError(e.Value, e.StandardError)}{Unit(unit)}, 95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}{Unit(unit)}";
     }
 
     private static Plot NewPlot(string title, string x, string y)

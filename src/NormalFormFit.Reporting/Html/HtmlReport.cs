@@ -69,6 +69,11 @@ public static partial class HtmlReport
             meta.Add("μ in " + E(report.ParamUnits));
         }
 
+        if (report.TimeUnit is not null)
+        {
+            meta.Add("time in " + E(report.TimeUnit));
+        }
+
         if (options.ToolVersion is not null)
         {
             meta.Add("nffit " + E(options.ToolVersion));

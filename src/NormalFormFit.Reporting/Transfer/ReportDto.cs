@@ -22,6 +22,12 @@ internal sealed record ReportDto
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public string? ParamUnits { get; init; }
 
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public string? ParamName { get; init; }
+
+    /// <summary>Always present; each unit null when unknown.</summary>
+    public required UnitsDto Units { get; init; }
+
     public required OnsetSectionDto Onset { get; init; }
 
     public required ScalingDto Scaling { get; init; }
@@ -37,6 +43,8 @@ internal sealed record ReportDto
         Schema = schema,
         ToolVersion = toolVersion,
         ParamUnits = report.ParamUnits,
+        ParamName = report.ParamName,
+        Units = new UnitsDto { Param = report.ParamUnits, Time = report.TimeUnit },
         Onset = new OnsetSectionDto
         {
             FromBottleneck = RouteDto.From(report.FromBottleneck, report.Verdict),
@@ -48,6 +56,39 @@ internal sealed record ReportDto
         Runs = [.. report.Runs.Select(r => RunDto.From(r, report.FlagsOf(r)))],
         Diagnostics = [.. report.AllDiagnostics.Select(DiagnosticDto.From)],
     };
+}
+
+/// <summary><c>units</c>: of the control parameter and of time (periods are in it, rates per it); null when unknown.</summary>
+internal sealed record UnitsDto
+{
+    public string? Param { get; init; }
+
+    public string? Time { get; init; }
+}
+
+/// <summary><c>runs[].rows_dropped</c>: rows of the run file not used as samples, by reason.</summary>
+internal sealed record DroppedRowsDto
+{
+    public int Blank { get; init; }
+
+    public int LowQuality { get; init; }
+
+    public int OffOrbit { get; init; }
+
+    public int PhaseJumps { get; init; }
+
+    public int Total { get; init; }
+
+    public static DroppedRowsDto From(NormalFormFit.Ingest.DroppedRows d) => new()
+    {
+        Blank = d.Blank,
+        LowQuality = d.LowQuality,
+        OffOrbit = d.OffOrbit,
+        PhaseJumps = d.PhaseJumps,
+        Total = d.Total,
+    };
+
+    public NormalFormFit.Ingest.DroppedRows ToRows() => new(Blank, LowQuality, OffOrbit, PhaseJumps);
 }
 
 /// <summary><c>onset</c>: the two routes and whether they agree.</summary>
@@ -287,6 +328,9 @@ internal sealed record RunDto
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public OrbitDto? Orbit { get; init; }
 
+    /// <summary>Always present (zeros when every row was used).</summary>
+    public required DroppedRowsDto RowsDropped { get; init; }
+
     public required IReadOnlyList<string> Flags { get; init; }
 
     public static RunDto From(RunResult r, IReadOnlyList<RunFlag> flags) => new()
@@ -336,6 +380,7 @@ internal sealed record RunDto
                 Sense = o.Sense,
             }
             : null,
+        RowsDropped = DroppedRowsDto.From(r.Dropped),
         Flags = [.. flags.Select(WireNames.Of)],
     };
 }

@@ -23,6 +23,12 @@ internal sealed record RunLineDto
     public string? ParamUnits { get; init; }
 
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public string? ParamName { get; init; }
+
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public string? TimeUnit { get; init; }
+
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public string? Label { get; init; }
 
     public required int Samples { get; init; }
@@ -56,16 +62,21 @@ internal sealed record RunLineDto
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public NoiseDto? Noise { get; init; }
 
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public DroppedRowsDto? RowsDropped { get; init; }
+
     public required IReadOnlyList<string> Flags { get; init; }
 
     public required IReadOnlyList<DiagnosticDto> Diagnostics { get; init; }
 
-    public static RunLineDto From(RunResult r, string schema, string? units) => new()
+    public static RunLineDto From(RunResult r, string schema, RunSet set) => new()
     {
         Schema = schema,
         File = r.File,
         Param = r.Param,
-        ParamUnits = units,
+        ParamUnits = set.ParamUnits,
+        ParamName = set.ParamName,
+        TimeUnit = set.TimeUnit,
         Label = r.Label,
         Samples = r.Samples,
         Duration = r.Duration,
@@ -129,6 +140,7 @@ internal sealed record RunLineDto
             : null,
         Relaxation = RelaxationDto.From(r.Relaxation),
         Noise = NoiseDto.From(r.Noise),
+        RowsDropped = r.Dropped.Total > 0 ? DroppedRowsDto.From(r.Dropped) : null,
         Flags = [.. r.Flags.Select(WireNames.Of)],
         Diagnostics = [.. r.Diagnostics.Select(DiagnosticDto.From)],
     };
@@ -161,6 +173,7 @@ internal sealed record RunLineDto
             : null,
         Relaxation = Relaxation?.ToFit(),
         Noise = Noise?.ToEstimate(),
+        Dropped = RowsDropped?.ToRows() ?? DroppedRows.None,
     };
 }
 

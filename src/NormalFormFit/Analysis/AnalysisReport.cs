@@ -27,6 +27,12 @@ public sealed record AnalysisReport(
     /// <summary>Units of the control parameter, when the manifest gave them.</summary>
     public string? ParamUnits { get; init; }
 
+    /// <summary>Unit of time of the runs (periods are in it, rates per it), when the run files or the options gave it.</summary>
+    public string? TimeUnit { get; init; }
+
+    /// <summary>Name of the control parameter from the manifest's header (<c>voltage</c>); null when it is just <c>param</c>.</summary>
+    public string? ParamName { get; init; }
+
     /// <summary>Suggested next runs: where they shrink each route's onset interval most, and the interval expected after them.</summary>
     public IReadOnlyList<NextMeasurement> NextMeasurements { get; init; } = [];
 

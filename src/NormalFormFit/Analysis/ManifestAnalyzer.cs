@@ -11,6 +11,12 @@ public sealed record AnalyzeOptions
     /// <summary>Per-run analysis options.</summary>
     public RunOptions Run { get; init; } = RunOptions.Default;
 
+    /// <summary>The manifest's parameter column (header name or 1-based position); null: <c>param</c>, else the only candidate.</summary>
+    public string? ParamColumn { get; init; }
+
+    /// <summary>Unit of the control parameter; null: from the manifest (its <c>units</c> column or the parameter column's name).</summary>
+    public string? ParamUnit { get; init; }
+
     /// <summary>Runs analysed at once (1 = sequential). Results do not depend on it.</summary>
     public int Parallelism { get; init; } = Environment.ProcessorCount;
 
@@ -28,7 +34,14 @@ public static class InsufficientData
 /// <summary>Analysed runs before they are combined.</summary>
 /// <param name="Runs">Per-run results in manifest order.</param>
 /// <param name="ParamUnits">Units of the control parameter, when the manifest gave them.</param>
-public sealed record RunSet(IReadOnlyList<RunResult> Runs, string? ParamUnits);
+public sealed record RunSet(IReadOnlyList<RunResult> Runs, string? ParamUnits)
+{
+    /// <summary>Unit of time of every run (runs in other units were converted to it); null when unknown.</summary>
+    public string? TimeUnit { get; init; }
+
+    /// <summary>Name of the control parameter from the manifest's header (<c>voltage</c>); null when it is just <c>param</c>.</summary>
+    public string? ParamName { get; init; }
+}
 
 /// <summary>Manifest → runs → report: the main job, wired from pure stages.</summary>
 public static class ManifestAnalyzer
@@ -52,7 +65,7 @@ public static class ManifestAnalyzer
     public static Loaded<RunSet> AnalyzeRuns(string manifestPath, AnalyzeOptions? options = null, IProgress<int>? progress = null)
     {
         options ??= AnalyzeOptions.Default;
-        var manifest = Manifest.Read(manifestPath);
+        var manifest = Manifest.Read(manifestPath, options.ParamColumn);
         if (manifest.Value is null)
         {
             return new Loaded<RunSet>(null, manifest.Diagnostics);
@@ -60,27 +73,53 @@ public static class ManifestAnalyzer
 
         var entries = manifest.Value.Entries;
         var fullPaths = entries.Select(manifest.Value.FullPathOf).ToArray();
+        var units = TimeUnits(manifestPath, entries, fullPaths, options.Read);
+        if (units.Value is null)
+        {
+            return new Loaded<RunSet>(null, units.Diagnostics);
+        }
+
+        var readOptions = units.Value.ReadOptions;
         var results = new RunResult?[entries.Count];
         var readDiags = new IReadOnlyList<Diagnostic>[entries.Count];
         var done = 0;
-        Parallel.For(0, entries.Count, new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, options.Parallelism) }, i =>
+        string Display(ManifestEntry e) => Path.Combine(Path.GetDirectoryName(manifestPath) ?? string.Empty, e.File);
+        void AnalyzeOne(int i, Ellipse? sharedOrbit)
         {
             var e = entries[i];
-            var display = Path.Combine(Path.GetDirectoryName(manifestPath) ?? string.Empty, e.File);
-            var rec = RunReader.ReadRecording(fullPaths[i], options.Read, display);
+            var display = Display(e);
+            var rec = RunReader.ReadRecording(fullPaths[i], readOptions[i], display);
             readDiags[i] = rec.Diagnostics;
             if (rec.Value is not null)
             {
-                var run = RecordingAnalyzer.Analyze(rec.Value, e.Param, e.File, e.Label, options.Run, rec.Diagnostics);
+                var run = RecordingAnalyzer.Analyze(rec.Value, e.Param, e.File, e.Label, options.Run, rec.Diagnostics, sharedOrbit);
                 results[i] = run.Value;
                 if (run.Value is null)
                 {
                     readDiags[i] = [.. run.Diagnostics.Select(d => d with { File = display })];
                 }
             }
+        }
 
+        Parallel.For(0, entries.Count, new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, options.Parallelism) }, i =>
+        {
+            AnalyzeOne(i, null);
             progress?.Report(Interlocked.Increment(ref done));
         });
+
+        // Positions that do not go round on their own (a rotor at rest) are read on the orbit that the turning runs
+        // of the same set trace: the best-fitting one.
+        var shared = results.Where(r => r is { Orbit.IsEllipse: true, IsTurning: true }).OrderBy(r => r!.Orbit!.RmsDeviation).FirstOrDefault()?.Orbit!.Ellipse;
+        if (shared is not null)
+        {
+            for (var i = 0; i < entries.Count; i++)
+            {
+                if (results[i] is null && readDiags[i].Any(d => d.Code == "no-winding") && readDiags[i].All(d => d.Severity != Severity.Error || d.Code == "no-winding"))
+                {
+                    AnalyzeOne(i, shared);
+                }
+            }
+        }
 
         var errors = readDiags.SelectMany(d => d).Where(d => d.Severity == Severity.Error).ToList();
         if (errors.Count > 0)
@@ -92,8 +131,55 @@ public static class ManifestAnalyzer
             return new Loaded<RunSet>(null, [.. errors, context]);
         }
 
-        var set = new RunSet(results.Select(r => r!).ToList(), entries.Select(e => e.Units).FirstOrDefault(u => u is not null));
-        return new Loaded<RunSet>(set, manifest.Diagnostics);
+        var paramUnit = options.ParamUnit ?? entries.Select(e => e.Units).FirstOrDefault(u => u is not null);
+        var set = new RunSet(results.Select(r => r!).ToList(), paramUnit) { TimeUnit = units.Value.Unit, ParamName = manifest.Value.ParamName };
+        return new Loaded<RunSet>(set, [.. manifest.Diagnostics, .. units.Diagnostics]);
+    }
+
+    private sealed record UnitPlan(string? Unit, RunReadOptions[] ReadOptions);
+
+    /// <summary>
+    /// The unit of time of the set: the one unit every run names (in its time column's header, or by option). Runs
+    /// in other units of time (s, ms, µs, ns, min, h) are converted to the first run's unit. A set where some runs
+    /// name a unit and others do not is refused: there is no telling how to compare them.
+    /// </summary>
+    private static Loaded<UnitPlan> TimeUnits(string manifestPath, IReadOnlyList<ManifestEntry> entries, string[] fullPaths, RunReadOptions read)
+    {
+        var found = new string?[entries.Count];
+        Parallel.For(0, entries.Count, i => found[i] = RunReader.TimeUnitOf(fullPaths[i], read));
+        var known = found.Where(u => u is not null).Distinct().ToList();
+        var options = new RunReadOptions[entries.Count];
+        if (known.Count == 0)
+        {
+            Array.Fill(options, read);
+            return new Loaded<UnitPlan>(new UnitPlan(null, options), []);
+        }
+
+        // A missing file names no unit either; reading it reports that, not a mix of units.
+        var unknown = Enumerable.Range(0, found.Length).FirstOrDefault(i => found[i] is null && File.Exists(fullPaths[i]), -1);
+        if (unknown >= 0)
+        {
+            var named = Array.FindIndex(found, u => u is not null);
+            return Loaded.Fail<UnitPlan>(new Diagnostic(Severity.Error, "mixed-time-units",
+                $"the run on line {entries[named].Line} gives its time in {found[named]}, the run on line {entries[unknown].Line} ({entries[unknown].File}) does not name a unit; name the unit in every run's time column (e.g. 'time_s', 't [ms]') or pass --time-unit",
+                manifestPath, entries[unknown].Line));
+        }
+
+        var target = found[0]!;
+        var diags = new List<Diagnostic>();
+        for (var i = 0; i < entries.Count; i++)
+        {
+            var factor = found[i] is null ? 1.0 : ColumnNames.SecondsPer(found[i]) / ColumnNames.SecondsPer(target);
+            options[i] = read with { TimeScale = double.IsFinite(factor) ? factor : 1.0, TimeUnit = target };
+        }
+
+        if (known.Count > 1)
+        {
+            diags.Add(new Diagnostic(Severity.Info, "time-units-converted",
+                $"the runs give their times in {string.Join(", ", known)}; all are converted to {target}", manifestPath));
+        }
+
+        return new Loaded<UnitPlan>(new UnitPlan(target, options), diags);
     }
 
     /// <summary>
@@ -119,7 +205,7 @@ public static class ManifestAnalyzer
             ]);
         }
 
-        var report = OnsetAnalysis.Combine(runs, set.ParamUnits);
+        var report = OnsetAnalysis.Combine(runs, set.ParamUnits) with { TimeUnit = set.TimeUnit, ParamName = set.ParamName };
         return new Loaded<AnalysisReport>(report, diagnostics);
     }
 }

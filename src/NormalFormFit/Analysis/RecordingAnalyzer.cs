@@ -13,7 +13,15 @@ namespace NormalFormFit.Analysis;
 public static class RecordingAnalyzer
 {
     /// <summary>Analyses one recording; null with errors only when the positions do not trace an orbit.</summary>
-    public static Loaded<RunResult> Analyze(RunRecording recording, double param, string file, string? label, RunOptions? options, IReadOnlyList<Diagnostic> readDiagnostics)
+    public static Loaded<RunResult> Analyze(RunRecording recording, double param, string file, string? label, RunOptions? options, IReadOnlyList<Diagnostic> readDiagnostics) =>
+        Analyze(recording, param, file, label, options, readDiagnostics, null);
+
+    /// <summary>
+    /// Analyses one recording. Positions that do not wind round an orbit of their own are read on
+    /// <paramref name="sharedOrbit"/> when one is given (a run at rest among runs that turn). Null with errors when the
+    /// positions trace no orbit or a phase column does not behave like a phase (<see cref="PhaseChecks.NotAPhase"/>).
+    /// </summary>
+    public static Loaded<RunResult> Analyze(RunRecording recording, double param, string file, string? label, RunOptions? options, IReadOnlyList<Diagnostic> readDiagnostics, Ellipse? sharedOrbit)
     {
         ArgumentNullException.ThrowIfNull(recording);
         ArgumentNullException.ThrowIfNull(readDiagnostics);
@@ -21,9 +29,9 @@ public static class RecordingAnalyzer
         switch (recording)
         {
             case EventRecording events:
-                return new Loaded<RunResult>(EventRunAnalyzer.Analyze(events, param, file, label, pre), []);
+                return new Loaded<RunResult>(EventRunAnalyzer.Analyze(events, param, file, label, pre) with { Dropped = events.Dropped }, []);
             case PositionRecording positions:
-                var (phase, orbit, orbitDiags) = OrbitPhase.FromPositions(positions);
+                var (phase, orbit, orbitDiags) = OrbitPhase.FromPositions(positions, sharedOrbit);
                 pre.AddRange(orbitDiags.Select(d => d with { File = file }));
                 if (phase is null || orbit is null)
                 {
@@ -33,14 +41,41 @@ public static class RecordingAnalyzer
                 pre.Add(new Diagnostic(Severity.Info, "orbit", string.Create(CultureInfo.InvariantCulture,
                     $"ellipse centre ({orbit.Ellipse.CentreX:G5}, {orbit.Ellipse.CentreY:G5}), semi-axes {orbit.Ellipse.SemiMajor:G4} and {orbit.Ellipse.SemiMinor:G4}, tilt {orbit.Ellipse.Tilt * 180 / Math.PI:F1}°, RMS deviation {orbit.RmsDeviation:P2}; turning {orbit.Sense}"),
                     file));
-                var fromPositions = new RunSource(RecordingKind.Positions, orbit, pre);
-                return new Loaded<RunResult>(RunAnalyzer.Analyze(Trajectory.FromRecording(phase), param, file, label, options, fromPositions), []);
+                return FromPhase(phase, param, file, label, options, RecordingKind.Positions, orbit, pre);
             case PhaseRecording phaseRecording:
-                var fromPhase = new RunSource(RecordingKind.Phase, null, pre);
-                return new Loaded<RunResult>(RunAnalyzer.Analyze(Trajectory.FromRecording(phaseRecording), param, file, label, options, fromPhase), []);
+                if (PhaseChecks.NotAPhase(phaseRecording) is { } notAPhase)
+                {
+                    return new Loaded<RunResult>(null, [.. pre, notAPhase with { File = file }]);
+                }
+
+                return FromPhase(phaseRecording, param, file, label, options, RecordingKind.Phase, null, pre);
             default:
                 throw new UnreachableException($"no analysis for a recording of kind {recording.Kind}");
         }
+    }
+
+    /// <summary>Isolated jumps out, gaps bridged or split (<see cref="Trajectory.FromRecording"/>), then the run analysis.</summary>
+    private static Loaded<RunResult> FromPhase(PhaseRecording phase, double param, string file, string? label, RunOptions? options, RecordingKind kind, OrbitSummary? orbit, List<Diagnostic> pre)
+    {
+        var (clean, jumps) = PhaseChecks.RejectIsolatedJumps(phase);
+        var ic = CultureInfo.InvariantCulture;
+        if (jumps > 0)
+        {
+            pre.Add(new Diagnostic(Severity.Info, "phase-jumps", string.Create(ic,
+                $"{jumps} sample(s) jump away from both neighbours and straight back (not a slip) and are not used"), file));
+        }
+
+        var trajectory = Trajectory.FromRecording(clean);
+        if (trajectory.SplitGaps > 0)
+        {
+            pre.Add(new Diagnostic(Severity.Warning, "large-gaps", string.Create(ic,
+                $"{trajectory.SplitGaps} gap(s) longer than half the local revolution time: the phase cannot be followed across them, and the run is analysed in {trajectory.SegmentStarts.Length} segments; check for lost frames or paused recording"),
+                file));
+        }
+
+        var dropped = phase.Dropped with { PhaseJumps = phase.Dropped.PhaseJumps + jumps };
+        var source = new RunSource(kind, orbit, pre) { Dropped = dropped };
+        return new Loaded<RunResult>(RunAnalyzer.Analyze(trajectory, param, file, label, options, source), []);
     }
 }
 

@@ -54,6 +54,7 @@ public static class RunAnalyzer
             {
                 InputKind = source.Kind,
                 Orbit = source.Orbit,
+                Dropped = source.Dropped,
                 Relaxation = relaxation,
                 Noise = noise,
             };

@@ -45,7 +45,7 @@ public enum RunFlag
     /// <summary>The run rests at a parameter value where other runs turn (or the reverse): hysteresis or bistability.</summary>
     Bistable,
 
-    /// <summary>Gaps longer than a few sampling steps split the run into segments.</summary>
+    /// <summary>Gaps too long to follow the phase across (over half the local revolution time) split the run into segments.</summary>
     LargeGaps,
 
     /// <summary>The orbit of the positions is far from an ellipse: the phase is a protophase (a, b in its units).</summary>
@@ -116,4 +116,7 @@ public sealed record RunResult(
 
     /// <summary>The ellipse fitted to the orbit when the run was recorded as positions; null otherwise.</summary>
     public OrbitSummary? Orbit { get; init; }
+
+    /// <summary>Rows of the run file not used as samples, by reason (none when not known, e.g. run lines of an earlier version).</summary>
+    public DroppedRows Dropped { get; init; } = DroppedRows.None;
 }

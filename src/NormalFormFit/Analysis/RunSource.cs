@@ -12,13 +12,16 @@ namespace NormalFormFit.Analysis;
 /// <param name="Diagnostics">Diagnostics of reading the file and of fitting the orbit, already naming the run file.</param>
 public sealed record RunSource(RecordingKind Kind, OrbitSummary? Orbit, IReadOnlyList<Diagnostic> Diagnostics)
 {
+    /// <summary>Rows of the run file not used as samples, by reason.</summary>
+    public DroppedRows Dropped { get; init; } = DroppedRows.None;
+
     /// <summary>A phase recording read without remarks.</summary>
     public static RunSource Phase { get; } = new(RecordingKind.Phase, null, []);
 
     /// <summary>
     /// The flags the input raises: <see cref="RunFlag.NotAnEllipse"/> when the orbit is far from an ellipse (the orbit
     /// fit's <c>not-an-ellipse</c> warning says so) and <see cref="RunFlag.LargeGaps"/> when the reader split the run at
-    /// long gaps (its <c>large-gaps</c> warning).
+    /// gaps it could not follow the phase across (the <c>large-gaps</c> warning).
     /// </summary>
     public IReadOnlyList<RunFlag> Flags
     {

@@ -28,7 +28,7 @@ public static class PhaseDiffusion
     /// diffusing with strength D (independent Wiener increments, Itô isometry) observed with white noise σ; the drift
     /// term f f′(kΔ)² is removed with the run's field. Weighted least squares of the variance on k = 1…4 gives D and σ;
     /// the standard error of D from eight contiguous blocks (common practice, no source). Assumes near-uniform sampling
-    /// (Δ = median step); differences never span a gap. O(n).
+    /// (Δ = median step); differences never span a gap, nor missing samples (a lag that is not kΔ within Δ/2). O(n).
     /// </summary>
     public static NoiseEstimate? Estimate(ReadOnlySpan<double> time, ReadOnlySpan<double> rawPhase, ReadOnlySpan<int> segmentStarts, PhaseField? field, BottleneckFit? bottleneck)
     {
@@ -97,7 +97,14 @@ public static class PhaseDiffusion
                     continue;
                 }
 
+                // Missing samples (dropped frames, blank rows) do not split a run: a difference across them would not
+                // have the lag kΔ the variance formula assumes, so it is skipped.
                 var lag = k * dt;
+                if (Math.Abs(time[i + k] - time[i] - lag) > 0.5 * dt || Math.Abs(time[i] - time[i - k] - lag) > 0.5 * dt)
+                {
+                    continue;
+                }
+
                 var r = rawPhase[i + k] - (2 * rawPhase[i]) + rawPhase[i - k] - (drift * lag * lag);
                 sums[block, k] += r * r;
                 counts[block, k]++;

@@ -21,6 +21,12 @@ public sealed record ManifestEntry(string File, double Param, string? Label = nu
 /// <param name="Entries">Its rows in file order.</param>
 public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
 {
+    /// <summary>Name of the parameter as the header gives it (<c>voltage</c> for <c>voltage_V</c>); null for <c>param</c>.</summary>
+    public string? ParamName { get; init; }
+
+    /// <summary>Unit of the parameter written in its column name (<c>V</c> for <c>voltage_V</c>); null when none.</summary>
+    public string? ParamUnit { get; init; }
+
     /// <summary>The full path of <paramref name="entry"/>'s run file: its path resolved against the manifest's folder.</summary>
     public string FullPathOf(ManifestEntry entry)
     {
@@ -30,7 +36,10 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
     }
 
     /// <summary>Reads and checks a manifest; problems come back as diagnostics.</summary>
-    public static Loaded<Manifest> Read(string path)
+    public static Loaded<Manifest> Read(string path) => Read(path, null);
+
+    /// <summary>Reads and checks a manifest whose parameter column is <paramref name="paramColumn"/> (a header name or a 1-based position; null: recognised).</summary>
+    public static Loaded<Manifest> Read(string path, string? paramColumn)
     {
         ArgumentNullException.ThrowIfNull(path);
         if (!System.IO.File.Exists(path))
@@ -42,7 +51,7 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
         try
         {
             using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read);
-            return Read(stream, path);
+            return Read(stream, path, paramColumn);
         }
         catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
@@ -50,7 +59,7 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
         }
     }
 
-    private static Loaded<Manifest> Read(Stream stream, string path)
+    private static Loaded<Manifest> Read(Stream stream, string path, string? paramColumn)
     {
         using var reader = new DelimitedTextReader(stream, Delimiter.Auto);
         const string expected = "a CSV file with header 'file,param' and one line per run";
@@ -72,17 +81,20 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
         }
 
         var header = Enumerable.Range(0, reader.FieldCount).Select(reader.FieldText).ToArray();
-        int Col(string n) => Array.FindIndex(header, h => string.Equals(h, n, StringComparison.OrdinalIgnoreCase));
-        var fileCol = Col("file");
-        var paramCol = Col("param");
+        int Col(params string[] names) => Array.FindIndex(header, h => names.Any(n => string.Equals(h.Trim(), n, StringComparison.OrdinalIgnoreCase)));
+        var fileCol = Col("file", "filename", "file name");
+        var labelCol = Col("label");
+        var unitsCol = Col("units", "unit");
+        var (paramCol, paramError) = ParameterColumn(header, fileCol, labelCol, unitsCol, paramColumn);
         if (fileCol < 0 || paramCol < 0)
         {
-            return Loaded.Fail<Manifest>(new Diagnostic(Severity.Error, "bad-header",
-                $"expected a header with columns 'file' and 'param', found '{string.Join(",", header)}'", path, reader.LineNumber, 1));
+            var why = fileCol < 0
+                ? $"expected a header with a column 'file' (the run files) and a column of parameter values such as 'param' or 'voltage_V', found '{string.Join(",", header)}'"
+                : paramError!;
+            return Loaded.Fail<Manifest>(new Diagnostic(Severity.Error, "bad-header", why, path, reader.LineNumber, 1));
         }
 
-        var labelCol = Col("label");
-        var unitsCol = Col("units");
+        var (paramName, paramUnit) = ColumnNames.SplitParameterName(header[paramCol]);
         var entries = new List<ManifestEntry>();
         var seen = new Dictionary<double, int>();
         while (reader.Read())
@@ -104,7 +116,7 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
             if (!DelimitedTextReader.TryParseNumber(reader.Field(paramCol), false, out var param) || !double.IsFinite(param))
             {
                 return Loaded.Fail<Manifest>(new Diagnostic(Severity.Error, "not-a-number",
-                    $"expected a number for param, found '{reader.FieldText(paramCol)}' (use a decimal point)", path, reader.LineNumber, reader.ColumnOf(paramCol)));
+                    $"expected a number for {header[paramCol]}, found '{reader.FieldText(paramCol)}' (use a decimal point)", path, reader.LineNumber, reader.ColumnOf(paramCol)));
             }
 
             if (seen.TryGetValue(param, out var other))
@@ -116,7 +128,7 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
 
             seen[param] = reader.LineNumber;
             string? Opt(int c) => c >= 0 && c < reader.FieldCount && reader.Field(c).Length > 0 ? reader.FieldText(c) : null;
-            entries.Add(new ManifestEntry(file, param, Opt(labelCol), Opt(unitsCol)) { Line = reader.LineNumber });
+            entries.Add(new ManifestEntry(file, param, Opt(labelCol), Opt(unitsCol) ?? paramUnit) { Line = reader.LineNumber });
         }
 
         if (reader.TooLong is not null)
@@ -130,6 +142,43 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
                 "the manifest has a header but names no runs; add one line per run: file,param", path));
         }
 
-        return new Loaded<Manifest>(new Manifest(path, entries), []);
+        var named = string.Equals(paramName, "param", StringComparison.OrdinalIgnoreCase) || paramName.Length == 0 ? null : paramName;
+        return new Loaded<Manifest>(new Manifest(path, entries) { ParamName = named, ParamUnit = paramUnit }, []);
+    }
+
+    /// <summary>Header names a manifest may have besides the file and the parameter: never taken as the parameter.</summary>
+    public static IReadOnlyList<string> OtherColumns { get; } = ["label", "units", "unit", "note", "notes", "comment", "comments", "description"];
+
+    /// <summary>
+    /// The parameter column: the one named by <paramref name="requested"/> (name or 1-based position), else a column
+    /// named <c>param</c>, else the only column that is not the file, a label, units or a note. Returns −1 and the
+    /// message when there is none or more than one.
+    /// </summary>
+    private static (int Column, string? Error) ParameterColumn(string[] header, int fileCol, int labelCol, int unitsCol, string? requested)
+    {
+        var found = string.Join(",", header);
+        if (requested is not null)
+        {
+            var k = int.TryParse(requested, NumberStyles.None, CultureInfo.InvariantCulture, out var pos) && pos >= 1 && pos <= header.Length
+                ? pos - 1
+                : Array.FindIndex(header, h => string.Equals(h.Trim(), requested.Trim(), StringComparison.OrdinalIgnoreCase));
+            return k >= 0 ? (k, null) : (-1, $"no parameter column '{requested}' (--param-column) in the header '{found}'; give a header name or a 1-based position");
+        }
+
+        var named = Array.FindIndex(header, h => string.Equals(h.Trim(), "param", StringComparison.OrdinalIgnoreCase));
+        if (named >= 0)
+        {
+            return (named, null);
+        }
+
+        var candidates = Enumerable.Range(0, header.Length)
+            .Where(i => i != fileCol && i != labelCol && i != unitsCol && !OtherColumns.Contains(header[i].Trim(), StringComparer.OrdinalIgnoreCase))
+            .ToList();
+        return candidates.Count switch
+        {
+            1 => (candidates[0], null),
+            0 => (-1, $"expected a header with a column 'file' and a column of parameter values (such as 'param', 'voltage_V' or 'I_app [pA]'), found '{found}'"),
+            _ => (-1, $"more than one column could hold the parameter values ({string.Join(", ", candidates.Select(i => "'" + header[i] + "'"))}); choose one with --param-column NAME"),
+        };
     }
 }

@@ -50,6 +50,12 @@ public abstract record RunRecording
 
     /// <summary>Number of samples (or events).</summary>
     public abstract int Count { get; }
+
+    /// <summary>Unit of the times (<c>s</c>, <c>ms</c>…) from the header or the options; null when unknown.</summary>
+    public string? TimeUnit { get; init; }
+
+    /// <summary>Rows of the file not used as samples, by reason.</summary>
+    public DroppedRows Dropped { get; init; } = DroppedRows.None;
 }
 
 /// <summary>A phase recording as read: time and phase in radians (not yet unwrapped), split at gaps.</summary>
@@ -61,6 +67,9 @@ public sealed record PhaseRecording(string File, double[] Time, double[] Phase, 
 {
     /// <summary>The phase was recorded unwrapped: within a segment it is used as is.</summary>
     public bool Unwrapped { get; init; }
+
+    /// <summary>Header name of the phase column (for messages); null when not read from a file with a header.</summary>
+    public string? PhaseColumnName { get; init; }
 
     /// <inheritdoc/>
     public override RecordingKind Kind => RecordingKind.Phase;

@@ -5,14 +5,26 @@ namespace NormalFormFit.Ingest;
 /// <summary>How to read a run file.</summary>
 public sealed record RunReadOptions
 {
-    /// <summary>Time column: a header name, or a 1-based position written as a number.</summary>
-    public string TimeColumn { get; init; } = "t";
+    /// <summary>Time column: a header name, or a 1-based position written as a number; null: recognised from the header (<see cref="ColumnNames"/>).</summary>
+    public string? TimeColumn { get; init; }
 
-    /// <summary>Phase column: a header name, or a 1-based position written as a number.</summary>
-    public string PhaseColumn { get; init; } = "theta";
+    /// <summary>Phase column: a header name, or a 1-based position written as a number; null: recognised from the header.</summary>
+    public string? PhaseColumn { get; init; }
 
-    /// <summary>Unit of the phase column.</summary>
-    public PhaseUnit PhaseUnit { get; init; } = PhaseUnit.Radians;
+    /// <summary>Unit of the phase column; null: the unit in its name (<c>theta_deg</c>), else radians.</summary>
+    public PhaseUnit? PhaseUnit { get; init; }
+
+    /// <summary>Per-sample quality column (<c>confidence</c>, <c>likelihood</c>…); null: recognised from the header; "none": not used.</summary>
+    public string? QualityColumn { get; init; }
+
+    /// <summary>Rows whose quality is below this are missing samples (default <see cref="RunReader.DefaultMinQuality"/>).</summary>
+    public double MinQuality { get; init; } = RunReader.DefaultMinQuality;
+
+    /// <summary>Unit of the time column (<c>s</c>, <c>ms</c>…); null: the unit in its name (<c>time_s</c>, <c>t [ms]</c>), else unknown.</summary>
+    public string? TimeUnit { get; init; }
+
+    /// <summary>Times are multiplied by this on reading (a manifest whose runs use different time units converts them to one).</summary>
+    public double TimeScale { get; init; } = 1.0;
 
     /// <summary>Field separator; detected from the header by default.</summary>
     public Delimiter Delimiter { get; init; } = Delimiter.Auto;
@@ -23,11 +35,11 @@ public sealed record RunReadOptions
     /// <summary>What the file records; inferred from the columns by default.</summary>
     public RecordingKindOption Kind { get; init; } = RecordingKindOption.Auto;
 
-    /// <summary>Horizontal position column (positions): a header name or a 1-based position.</summary>
-    public string XColumn { get; init; } = "x";
+    /// <summary>Horizontal position column (positions): a header name or a 1-based position; null: recognised from the header.</summary>
+    public string? XColumn { get; init; }
 
-    /// <summary>Vertical position column (positions): a header name or a 1-based position.</summary>
-    public string YColumn { get; init; } = "y";
+    /// <summary>Vertical position column (positions): a header name or a 1-based position; null: recognised from the header.</summary>
+    public string? YColumn { get; init; }
 
     /// <summary>Event-time column (events); null: the only column, else the time column.</summary>
     public string? EventColumn { get; init; }
@@ -38,7 +50,7 @@ public sealed record RunReadOptions
     /// <summary>The phase column is already unwrapped: steps between samples are taken as recorded.</summary>
     public bool PhaseUnwrapped { get; init; }
 
-    /// <summary>Default options: columns <c>t</c> and <c>theta</c>, radians.</summary>
+    /// <summary>Default options: columns recognised from the header, quality threshold 0.5.</summary>
     public static RunReadOptions Default { get; } = new();
 }
 
@@ -50,6 +62,13 @@ public static class RunReader
     /// dropped frames) are ordinary non-uniform sampling that the smoothing spline bridges (common practice, no source).
     /// </summary>
     public const double GapFactor = 10.0;
+
+    /// <summary>
+    /// Rows whose quality (<c>confidence</c>, <c>likelihood</c>…) is below this are missing samples. Trackers score
+    /// a detection from 0 to 1; half marks the point below which a detection is more likely wrong than right
+    /// (common practice, no source). For a score in percent pass 50.
+    /// </summary>
+    public const double DefaultMinQuality = 0.5;
 
     /// <summary>
     /// Reads <paramref name="path"/> as a phase recording (<c>t,theta</c>). Errors (missing file, no data, text where
@@ -137,12 +156,16 @@ public static class RunReader
 
         var cols = layout.Columns;
         var expectedFields = header.Length;
-        var scale = layout.Kind != RecordingKind.Phase ? 1.0 : options.PhaseUnit switch
+        var phaseUnit = options.PhaseUnit ?? layout.PhaseUnit ?? PhaseUnit.Radians;
+        var scale = layout.Kind != RecordingKind.Phase ? 1.0 : phaseUnit switch
         {
             PhaseUnit.Degrees => Math.PI / 180.0,
             PhaseUnit.Turns => 2.0 * Math.PI,
             _ => 1.0,
         };
+        var timeScale = options.TimeScale;
+        var events = layout.Kind == RecordingKind.Events;
+        var qualityCol = layout.QualityColumn;
         var values = new GrowableArray[cols.Length];
         for (var c = 0; c < cols.Length; c++)
         {
@@ -156,6 +179,7 @@ public static class RunReader
         var decimalComma = options.DecimalComma;
         var firstData = true;
         var first = true;
+        int blank = 0, lowQuality = 0;
         Span<double> parsed = stackalloc double[3];
         do
         {
@@ -192,25 +216,18 @@ public static class RunReader
                 }
             }
 
+            // A blank or non-finite value in a column that is read makes the row a missing sample.
             var missing = false;
             for (var c = 0; c < cols.Length; c++)
             {
-                if (DelimitedTextReader.IsMissing(reader.Field(cols[c])))
+                var field = reader.Field(cols[c]);
+                if (DelimitedTextReader.IsMissing(field))
                 {
                     missing = true;
-                    break;
+                    continue;
                 }
-            }
 
-            if (missing)
-            {
-                gapPending = values[0].Count > 0;
-                continue;
-            }
-
-            for (var c = 0; c < cols.Length; c++)
-            {
-                if (!DelimitedTextReader.TryParseNumber(reader.Field(cols[c]), decimalComma, out parsed[c]) || !double.IsFinite(parsed[c]))
+                if (!DelimitedTextReader.TryParseNumber(field, decimalComma, out parsed[c]))
                 {
                     if (reader.LineLooksBinary())
                     {
@@ -219,15 +236,52 @@ public static class RunReader
 
                     return Loaded.Fail<RunRecording>(BadNumber(reader, cols[c], name, layout.Roles[c], decimalComma));
                 }
+
+                missing |= !double.IsFinite(parsed[c]);
             }
 
-            var tv = parsed[0];
+            var dropLow = false;
+            if (!missing && qualityCol >= 0)
+            {
+                var field = reader.Field(qualityCol);
+                if (DelimitedTextReader.IsMissing(field))
+                {
+                    dropLow = true;
+                }
+                else if (!DelimitedTextReader.TryParseNumber(field, decimalComma, out var q))
+                {
+                    return Loaded.Fail<RunRecording>(BadNumber(reader, qualityCol, name, "quality", decimalComma));
+                }
+                else
+                {
+                    dropLow = !(q >= options.MinQuality);
+                }
+            }
+
+            if (missing || dropLow)
+            {
+                if (missing)
+                {
+                    blank++;
+                }
+                else
+                {
+                    lowQuality++;
+                }
+
+                // Event times keep their gaps: an interval is never taken across a missing event. Samples of a phase
+                // or of positions do not: whether the phase can be followed across a gap is decided later (Trajectory).
+                gapPending = events && values[0].Count > 0;
+                continue;
+            }
+
+            var tv = parsed[0] * timeScale;
             if (tv <= lastTime)
             {
                 var what = tv == lastTime ? "repeats" : "goes backwards";
                 return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "time-not-increasing",
                     string.Create(CultureInfo.InvariantCulture,
-                        $"{layout.Roles[0]} {what} ({tv:R} after {lastTime:R} on line {lastTimeLine}); values must strictly increase: sort the file or remove duplicate rows"),
+                        $"{layout.Roles[0]} {what} ({parsed[0]:R} after {lastTime / timeScale:R} on line {lastTimeLine}); values must strictly increase: sort the file or remove duplicate rows"),
                     name, reader.LineNumber, reader.ColumnOf(cols[0])));
             }
 
@@ -254,30 +308,81 @@ public static class RunReader
 
         if (values[0].Count == 0)
         {
-            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "no-data",
-                $"the file has a header but no data lines; expected one line per sample ({Describe(layout)})", name, reader.LineNumber));
+            var none = blank + lowQuality == 0
+                ? $"the file has a header but no data lines; expected one line per sample ({Describe(layout)})"
+                : $"every data line is a missing sample ({blank} with a blank or non-finite value, {lowQuality} below quality {options.MinQuality:G}); expected one line per sample ({Describe(layout)}): check the columns, or lower --min-quality";
+            return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "no-data", none, name, reader.LineNumber));
         }
 
         var time = values[0].ToArray();
         int[] segs = [.. segments];
         if (layout.Kind != RecordingKind.Events)
         {
-            segs = SplitAtLongSteps(time, segs, out var gaps, out var longest);
+            CountLongSteps(time, out var gaps, out var longest);
             if (gaps > 0)
             {
-                diagnostics.Add(new Diagnostic(Severity.Warning, "large-gaps", string.Create(CultureInfo.InvariantCulture,
-                    $"{gaps} gap(s) longer than {GapFactor:G} typical sampling steps (longest {longest:G3} steps); the run is analysed in {segs.Length} segments: check for lost frames or paused recording"),
+                diagnostics.Add(new Diagnostic(Severity.Info, "gaps", string.Create(CultureInfo.InvariantCulture,
+                    $"{gaps} gap(s) longer than {GapFactor:G} typical sampling steps (longest {longest:G3} steps): the phase is followed across a gap shorter than half the local revolution time"),
                     name));
             }
         }
 
+        if (blank + lowQuality > 0)
+        {
+            diagnostics.Add(new Diagnostic(Severity.Info, "rows-dropped", string.Create(CultureInfo.InvariantCulture,
+                $"{blank + lowQuality} row(s) are missing samples: {blank} with a blank or non-finite value, {lowQuality} below quality {options.MinQuality:G}{(qualityCol >= 0 ? $" (column '{header[qualityCol]}')" : string.Empty)}"),
+                name));
+        }
+
+        var timeUnit = options.TimeUnit is { } tu ? ColumnNames.NormaliseUnit(tu) : layout.TimeUnit;
+        var dropped = new DroppedRows(blank, lowQuality, 0, 0);
         RunRecording recording = layout.Kind switch
         {
-            RecordingKind.Phase => new PhaseRecording(name, time, values[1].ToArray(), segs) { Unwrapped = options.PhaseUnwrapped },
+            RecordingKind.Phase => new PhaseRecording(name, time, values[1].ToArray(), segs) { Unwrapped = options.PhaseUnwrapped, PhaseColumnName = layout.Names[1] },
             RecordingKind.Positions => new PositionRecording(name, time, values[1].ToArray(), values[2].ToArray(), segs, options.YDown),
             _ => new EventRecording(name, time, segs),
         };
+        recording = recording with { TimeUnit = timeUnit, Dropped = dropped };
         return new Loaded<RunRecording>(recording, diagnostics);
+    }
+
+    /// <summary>
+    /// Reads only the header of a run file and returns the unit of its time column (from the name, or the option):
+    /// what a manifest needs to bring runs with different time units to one. Null when unknown or unreadable.
+    /// </summary>
+    public static string? TimeUnitOf(string path, RunReadOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        if (options.TimeUnit is { } given)
+        {
+            return ColumnNames.NormaliseUnit(given);
+        }
+
+        try
+        {
+            using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, 1 << 12);
+            using var reader = new DelimitedTextReader(stream, options.Delimiter);
+            if (!reader.Read() || reader.LineLooksBinary())
+            {
+                return null;
+            }
+
+            var header = Enumerable.Range(0, reader.FieldCount).Select(reader.FieldText).ToArray();
+            var headerIsData = Enumerable.Range(0, reader.FieldCount).All(i =>
+                DelimitedTextReader.TryParseNumber(reader.Field(i), options.DecimalComma, out _) || DelimitedTextReader.IsMissing(reader.Field(i)));
+            return headerIsData ? null : LayoutFromHeader(header, options).TimeUnit;
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            return null;
+        }
+    }
+
+    /// <summary>Counts time steps longer than <see cref="GapFactor"/> typical (median) steps.</summary>
+    internal static void CountLongSteps(double[] time, out int gaps, out double longest)
+    {
+        var starts = SplitAtLongSteps(time, [0], out gaps, out longest);
+        _ = starts;
     }
 
     /// <summary>
@@ -336,6 +441,18 @@ public static class RunReader
     private sealed record Layout(RecordingKind Kind, int[] Columns, string[] Roles, string? Error)
     {
         public static Layout Failed(string error) => new(default, [], [], error);
+
+        /// <summary>Per-sample quality column; −1 when none.</summary>
+        public int QualityColumn { get; init; } = -1;
+
+        /// <summary>Unit of the time column from its name; null when none.</summary>
+        public string? TimeUnit { get; init; }
+
+        /// <summary>Unit of the phase column from its name; null when none.</summary>
+        public PhaseUnit? PhaseUnit { get; init; }
+
+        /// <summary>Header names of <see cref="Columns"/> (or "column K" without a header).</summary>
+        public string[] Names { get; init; } = [];
     }
 
     private static readonly string[] PhaseRoles = ["time", "phase"];
@@ -356,37 +473,164 @@ public static class RunReader
         };
         var roles = Roles(kind);
         var beyond = Array.FindIndex(cols, c => c >= fields);
+        var quality = o.QualityColumn is { } q && TryPosition(q, out var qk) && qk < fields ? qk : -1;
+        string[] names = [.. cols.Select(c => $"column {c + 1}")];
         return beyond >= 0
             ? new Layout(kind, cols, roles, $"the {roles[beyond]} column is {cols[beyond] + 1} but the first line has only {fields} field(s); give the column positions with --time-column, --phase-column, --x-column, --y-column or --event-column")
-            : new Layout(kind, cols, roles, null);
+            : new Layout(kind, cols, roles, null) { QualityColumn = quality, Names = names };
     }
 
     private static Layout LayoutFromHeader(string[] header, RunReadOptions o)
     {
         var found = string.Join(", ", header);
-        var hint = "expected 't,theta' (phase), 't,x,y' (positions) or one column of event times; name the columns with --time-column, --phase-column, --x-column, --y-column or --event-column (by header name or 1-based position), or set --kind";
-        var requested = Requested(o.Kind)
-            ?? (Resolve(o.PhaseColumn, header) >= 0 ? RecordingKind.Phase
-                : Resolve(o.XColumn, header) >= 0 && Resolve(o.YColumn, header) >= 0 ? RecordingKind.Positions
-                : header.Length == 1 || (o.EventColumn is { } ev && Resolve(ev, header) >= 0) ? RecordingKind.Events
-                : null);
-        if (requested is not { } kind)
+        var hint = "expected a time column ('t', 'time', 'time_s'…) with a phase ('theta', 'phase', 'angle_deg'…) or positions ('x', 'y', 'x_px', 'y_px'…), or one column of event times (docs/input-formats.md lists the names); name the columns with --time-column, --phase-column, --x-column, --y-column or --event-column (by header name or 1-based position), or set --kind";
+        var recognised = header.Select(ColumnNames.Recognise).ToArray();
+
+        // Candidates for one role; an option names the column instead.
+        List<int> Candidates(ColumnRole role) => [.. Enumerable.Range(0, header.Length).Where(i => recognised[i].Role == role)];
+        string Listed(IEnumerable<int> cols) => string.Join(", ", cols.Select(i => "'" + header[i] + "'"));
+        string Ambiguous(string what, List<int> cols, string option) =>
+            $"more than one column could be the {what} ({Listed(cols)}); choose one with {option} NAME";
+
+        var phases = Candidates(ColumnRole.Phase);
+        var phaseSpec = o.PhaseColumn is { } ps ? Resolve(ps, header) : phases.Count == 1 ? phases[0] : -1;
+
+        // Position pairs: x and y with the same marker (or none).
+        var xs = Candidates(ColumnRole.X);
+        var pairs = xs
+            .Select(x => (X: x, Y: Enumerable.Range(0, header.Length).FirstOrDefault(
+                j => recognised[j].Role == ColumnRole.Y && recognised[j].Marker == recognised[x].Marker && recognised[j].Unit == recognised[x].Unit, -1)))
+            .Where(p => p.Y >= 0)
+            .ToList();
+        var xSpec = o.XColumn is { } xo ? Resolve(xo, header) : pairs.Count == 1 ? pairs[0].X : -1;
+        var ySpec = o.YColumn is { } yo ? Resolve(yo, header)
+            : o.XColumn is not null && xSpec >= 0 ? pairs.FirstOrDefault(p => p.X == xSpec, (X: -1, Y: -1)).Y
+            : pairs.Count == 1 ? pairs[0].Y : -1;
+
+        RecordingKind? requested = Requested(o.Kind);
+        if (requested is null)
         {
-            return Layout.Failed($"cannot tell what the file records from its header (found: {found}); {hint}");
+            if (o.PhaseColumn is null && phases.Count > 1)
+            {
+                return Layout.Failed(Ambiguous("phase", phases, "--phase-column"));
+            }
+
+            if (phaseSpec >= 0)
+            {
+                requested = RecordingKind.Phase;
+            }
+            else if (xSpec >= 0 && ySpec >= 0)
+            {
+                requested = RecordingKind.Positions;
+            }
+            else if (o.XColumn is null && o.YColumn is null && pairs.Count > 1)
+            {
+                return Layout.Failed($"more than one pair of columns could be the positions ({string.Join("; ", pairs.Select(p => Listed([p.X, p.Y])))}); choose one with --x-column NAME --y-column NAME");
+            }
+            else if (header.Length == 1 || (o.EventColumn is { } ev && Resolve(ev, header) >= 0))
+            {
+                requested = RecordingKind.Events;
+            }
         }
 
-        string[] specs = kind switch
+        if (requested is not { } kind)
         {
-            RecordingKind.Phase => [o.TimeColumn, o.PhaseColumn],
-            RecordingKind.Positions => [o.TimeColumn, o.XColumn, o.YColumn],
-            _ => [o.EventColumn ?? (header.Length == 1 ? "1" : o.TimeColumn)],
-        };
+            var others = Enumerable.Range(0, header.Length).Where(i => recognised[i].Role == ColumnRole.Other).ToList();
+            var signal = others.Count > 0
+                ? $" (column {Listed(others)} is neither a time, a phase, a position, a quality nor a frame number: nffit does not read a single signal such as a voltage as a phase)"
+                : string.Empty;
+            return Layout.Failed($"cannot tell what the file records from its header (found: {found}){signal}; {hint}");
+        }
+
+        int TimeColumn()
+        {
+            if (o.TimeColumn is { } spec)
+            {
+                return Resolve(spec, header);
+            }
+
+            var times = Candidates(ColumnRole.Time);
+            return times.Count == 1 ? times[0] : times.Count == 0 ? -1 : -2;
+        }
+
         var roles = Roles(kind);
-        var cols = specs.Select(s => Resolve(s, header)).ToArray();
+        int[] cols;
+        string[] specs;
+        switch (kind)
+        {
+            case RecordingKind.Phase:
+                cols = [TimeColumn(), o.PhaseColumn is { } p ? Resolve(p, header) : phases.Count == 1 ? phases[0] : phases.Count == 0 ? -1 : -2];
+                specs = [o.TimeColumn ?? "t", o.PhaseColumn ?? "theta"];
+                break;
+            case RecordingKind.Positions:
+                cols = [TimeColumn(), xSpec, ySpec];
+                specs = [o.TimeColumn ?? "t", o.XColumn ?? "x", o.YColumn ?? "y"];
+                break;
+            default:
+                var evSpec = o.EventColumn ?? o.TimeColumn;
+                cols = [evSpec is not null ? Resolve(evSpec, header) : header.Length == 1 ? 0 : TimeColumn()];
+                specs = [evSpec ?? "t"];
+                break;
+        }
+
+        var ambiguous = Array.FindIndex(cols, c => c == -2);
+        if (ambiguous >= 0)
+        {
+            var role = ambiguous == 0 ? ColumnRole.Time : ColumnRole.Phase;
+            return Layout.Failed(Ambiguous(roles[ambiguous], Candidates(role), ambiguous == 0 ? "--time-column" : "--phase-column"));
+        }
+
         var missing = Array.FindIndex(cols, c => c < 0);
-        return missing >= 0
-            ? new Layout(kind, cols, roles, $"no {roles[missing]} column '{specs[missing]}' in the header (found: {found}); {hint}")
-            : new Layout(kind, cols, roles, null);
+        if (missing >= 0)
+        {
+            return Layout.Failed($"no {roles[missing]} column '{specs[missing]}' in the header (found: {found}); {hint}");
+        }
+
+        // Quality: the option, else the recognised column (of the chosen marker when there are several).
+        var quality = -1;
+        if (o.QualityColumn is { } qspec)
+        {
+            if (!string.Equals(qspec, "none", StringComparison.OrdinalIgnoreCase))
+            {
+                quality = Resolve(qspec, header);
+                if (quality < 0)
+                {
+                    return Layout.Failed($"no quality column '{qspec}' in the header (found: {found}); name it with --quality-column, or pass --quality-column none");
+                }
+            }
+        }
+        else if (kind != RecordingKind.Events)
+        {
+            var qs = Candidates(ColumnRole.Quality);
+            if (qs.Count > 1 && kind == RecordingKind.Positions)
+            {
+                var marker = recognised[cols[1]].Marker;
+                var own = qs.Where(q => recognised[q].Marker == marker).ToList();
+                qs = own.Count > 0 ? own : qs;
+            }
+
+            if (qs.Count > 1)
+            {
+                return Layout.Failed(Ambiguous("quality", qs, "--quality-column"));
+            }
+
+            quality = qs.Count == 1 ? qs[0] : -1;
+        }
+
+        var timeUnit = recognised[cols[0]].Unit;
+        if (timeUnit is not null && !ColumnNames.TimeUnits.ContainsKey(timeUnit))
+        {
+            timeUnit = null;
+        }
+
+        PhaseUnit? phaseUnit = kind == RecordingKind.Phase && recognised[cols[1]].Unit is { } pu && ColumnNames.PhaseUnits.TryGetValue(pu, out var unit) ? unit : null;
+        return new Layout(kind, cols, roles, null)
+        {
+            QualityColumn = quality,
+            TimeUnit = timeUnit,
+            PhaseUnit = phaseUnit,
+            Names = [.. cols.Select(c => header[c])],
+        };
     }
 
     private static RecordingKind? Requested(RecordingKindOption option) => option switch

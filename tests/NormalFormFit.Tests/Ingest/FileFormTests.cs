@@ -96,7 +96,7 @@ public class FileFormTests
     }
 
     [Fact]
-    public void MissingValuesAndLongPauses_SplitTheRunIntoSegments()
+    public void MissingValuesAndLongPauses_AreMissingSamples_TheReaderDoesNotSplitTheRun()
     {
         var sb = new StringBuilder("t,x,y\n");
         for (var i = 0; i < 100; i++)
@@ -106,8 +106,10 @@ public class FileFormTests
         }
 
         var r = Read(sb.ToString());
-        Assert.Equal([0, 30, 59], Assert.IsType<PositionRecording>(r.Value).SegmentStarts);
-        Assert.Contains(r.Diagnostics, d => d.Code == "large-gaps" && d.Severity == Severity.Warning);
+        var positions = Assert.IsType<PositionRecording>(r.Value);
+        Assert.Equal([0], positions.SegmentStarts);
+        Assert.Equal(1, positions.Dropped.Blank);
+        Assert.Contains(r.Diagnostics, d => d.Code == "gaps" && d.Severity == Severity.Info);
     }
 
     [Fact]

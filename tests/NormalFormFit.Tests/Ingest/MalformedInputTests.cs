@@ -39,7 +39,7 @@ public class MalformedInputTests
         new BadRun("binary.csv", [0x89, 0x50, 0x4E, 0x47, 0x0D, 0x0A, 0x1A, 0x0A, 0x00, 0x00, 0x00, 0x0D, 0x49, 0x48, 0x44, 0x52], 1, null, "not text", []),
         new BadRun("binary-after-header.csv", [.. T("t,theta\n0,0\n"), 0x00, 0x01, 0x2C, 0x02, 0x0A], 3, null, "not text", []),
         new BadRun("invalid-utf8.csv", [.. T("t,theta\n0,0\n0.1,"), 0xFF, 0xFE, 0x0A], 3, null, "not text", []),
-        Bad("unknown-header.csv", "time,angle\n0,1\n", 1, 1, "cannot tell what the file records from its header (found: time, angle)"),
+        Bad("unknown-header.csv", "time,voltage\n0,1\n", 1, 1, "cannot tell what the file records from its header (found: time, voltage)"),
         Bad("x-without-y.csv", "t,x\n0,1\n", 1, 1, "cannot tell what the file records"),
         Bad("text-for-y.csv", "t,x,y\n0,1,2\n0.1,1,zz\n", 3, 7, "expected a number for the y in column 3, found 'zz'"),
         Bad("positions-on-a-line.csv", "t,x,y\n0,1,1\n1,2,2\n2,3,3\n3,4,4\n4,5,5\n5,6,6\n", null, null, "do not trace a closed orbit"),
@@ -114,7 +114,7 @@ public class MalformedInputTests
     public static TheoryData<string, string, int, int?, string> ManifestCases => new()
     {
         { "empty manifest", "", 2, null, "the manifest is empty" },
-        { "bad header", "path,mu\nrun.csv,1\n", 2, 1, "expected a header with columns 'file' and 'param'" },
+        { "bad header", "path,mu\nrun.csv,1\n", 2, 1, "expected a header with a column 'file'" },
         { "param not a number", "file,param\na.csv,1.1\nb.csv,one\n", 2, 3, "expected a number for param, found 'one'" },
         { "duplicate param", "file,param\na.csv,1.1\nb.csv,1.10\n", 2, 3, "param 1.1 already appears on line 2" },
         { "missing run file", "file,param\nnot-there.csv,1.1\n", 2, null, "not-there.csv: error: the file does not exist" },

@@ -37,11 +37,13 @@ public class RunReaderTests
     }
 
     [Fact]
-    public void Read_MissingValues_SplitTheRunIntoSegments()
+    public void Read_MissingValues_AreDroppedAndCounted_WithoutSplittingTheRun()
     {
+        // Whether the phase can be followed across the gap is decided when it is unwrapped (Trajectory), not here.
         var r = ReadText("t,theta\n0,0\n1,0.1\n2,NaN\n3,\n4,0.4\n5,0.5\n");
-        Assert.Equal([0, 2], r.Value!.SegmentStarts);
+        Assert.Equal([0], r.Value!.SegmentStarts);
         Assert.Equal(4, r.Value.Time.Length);
+        Assert.Equal(new DroppedRows(2, 0, 0, 0), r.Value.Dropped);
     }
 
     [Theory]
@@ -51,7 +53,7 @@ public class RunReaderTests
     [InlineData("t,theta\n0,0.1\n0,0.2\n", "time-not-increasing", 3)]
     [InlineData("t,theta\n1,0.1\n0.5,0.2\n", "time-not-increasing", 3)]
     [InlineData("t,theta\n0,0.1\n1\n", "wrong-field-count", 3)]
-    [InlineData("time,angle\n0,0.1\n", "missing-column", 1)]
+    [InlineData("time,voltage\n0,0.1\n", "missing-column", 1)]
     public void Read_BadContent_GivesOneErrorWithLine(string text, string code, int? line)
     {
         var r = ReadText(text);

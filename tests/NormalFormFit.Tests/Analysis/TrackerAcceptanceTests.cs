@@ -1,0 +1,197 @@
+using System.Text.Json;
+using FsCheck;
+using FsCheck.Xunit;
+using NormalFormFit.Tests.Cli;
+
+namespace NormalFormFit.Tests.Analysis;
+
+/// <summary>
+/// A marker tracker's export of a rotor (<see cref="TrackerScenario"/>: one file per motor voltage,
+/// <c>frame,time_s,x_px,y_px,confidence</c>, image y down, dropped frames, bursts of lost frames, blank x/y, wrong
+/// positions) analysed as a new user would: with no options at all. The truth is the simulation's own onset, 6 V.
+/// </summary>
+public class TrackerAcceptanceTests
+{
+    private static readonly Lazy<IReadOnlyList<TrackerScenario.Run>> Runs = new(() => TrackerScenario.Simulate());
+
+    // Nearest run above onset: 6.12 V; "a small fraction of the distance" to it: a tenth.
+    private const double Tolerance = 0.1 * (6.12 - TrackerScenario.OnsetVolts);
+
+    [Fact]
+    public void TrackerExport_WithNoOptions_FindsBothOnsetsWithinATenthOfTheDistanceToTheNearestRun_AndIntervalsCoverTheTruth()
+    {
+        using var dir = CliTestHost.NewFolder();
+        var manifest = TrackerScenario.Write(dir.Path, Runs.Value);
+        var (code, json, err) = CliTestHost.Run("analyze", manifest, "--json", "-");
+        Assert.True(code == 0, err);
+        using var doc = JsonDocument.Parse(json);
+        var onset = doc.RootElement.GetProperty("onset");
+        foreach (var route in new[] { "from_bottleneck", "from_period" })
+        {
+            var r = onset.GetProperty(route);
+            var value = r.GetProperty("value").GetDouble();
+            Assert.True(Math.Abs(value - TrackerScenario.OnsetVolts) < Tolerance, $"{route}: {value} V");
+            Assert.InRange(TrackerScenario.OnsetVolts, r.GetProperty("ci95_low").GetDouble(), r.GetProperty("ci95_high").GetDouble());
+        }
+    }
+
+    [Fact]
+    public void TrackerExport_TimesEveryTurningRunOverAllItsRevolutions_AndReportsTheStalledRunAsNotTurning()
+    {
+        using var dir = CliTestHost.NewFolder();
+        var manifest = TrackerScenario.Write(dir.Path, Runs.Value);
+        var (code, json, err) = CliTestHost.Run("analyze", manifest, "--json", "-");
+        Assert.True(code == 0, err);
+        using var doc = JsonDocument.Parse(json);
+        var runs = doc.RootElement.GetProperty("runs").EnumerateArray().ToList();
+        Assert.Equal(Runs.Value.Count, runs.Count);
+        for (var k = 0; k < runs.Count; k++)
+        {
+            var truth = Runs.Value[k];
+            var run = runs[k];
+            var flags = run.GetProperty("flags").EnumerateArray().Select(f => f.GetString()).ToList();
+            if (truth.Volts < TrackerScenario.OnsetVolts)
+            {
+                Assert.Contains("not-turning", flags);
+                continue;
+            }
+
+            Assert.DoesNotContain("not-turning", flags);
+            Assert.DoesNotContain("large-gaps", flags);
+            Assert.DoesNotContain("not-an-ellipse", flags);
+
+            // Periods are timed between passages through one phase: W whole turns give W − 1 or W periods.
+            var revolutions = run.GetProperty("period").GetProperty("revolutions").GetInt32();
+            Assert.True(revolutions >= truth.WholeTurns - 1, $"{truth.Volts} V: {revolutions} of {truth.WholeTurns} turns timed");
+        }
+    }
+
+    [Fact]
+    public void TrackerExport_ReportsTheRowsDroppedAndWhy()
+    {
+        using var dir = CliTestHost.NewFolder();
+        var manifest = TrackerScenario.Write(dir.Path, Runs.Value);
+        var (code, json, err) = CliTestHost.Run("analyze", manifest, "--json", "-");
+        Assert.True(code == 0, err);
+        using var doc = JsonDocument.Parse(json);
+        var runs = doc.RootElement.GetProperty("runs").EnumerateArray().ToList();
+        for (var k = 0; k < runs.Count; k++)
+        {
+            var truth = Runs.Value[k];
+            var dropped = runs[k].GetProperty("rows_dropped");
+            Assert.Equal(truth.BlankRows, dropped.GetProperty("blank").GetInt32());
+            Assert.Equal(truth.LowGlitches, dropped.GetProperty("low_quality").GetInt32());
+
+            // A wrong position above the threshold is dropped off the orbit or as a phase jump, unless it happened
+            // to land on the orbit close to the true position.
+            var wrong = dropped.GetProperty("off_orbit").GetInt32() + dropped.GetProperty("phase_jumps").GetInt32();
+            Assert.InRange(wrong, 0, truth.HighGlitches + 2);
+        }
+    }
+
+    [Fact]
+    public void TrackerExport_PutsVoltsAndSecondsInTheJsonAndTheSummary()
+    {
+        using var dir = CliTestHost.NewFolder();
+        var manifest = TrackerScenario.Write(dir.Path, Runs.Value);
+        var (_, json, _) = CliTestHost.Run("analyze", manifest, "--json", "-");
+        using var doc = JsonDocument.Parse(json);
+        var units = doc.RootElement.GetProperty("units");
+        Assert.Equal("V", units.GetProperty("param").GetString());
+        Assert.Equal("s", units.GetProperty("time").GetString());
+
+        var (code, text, err) = CliTestHost.Run("analyze", manifest);
+        Assert.True(code == 0, err);
+        Assert.Contains("μ is voltage in V, time in s", text, StringComparison.Ordinal);
+        Assert.Contains("T meas (s)", text, StringComparison.Ordinal);
+        Assert.Contains("param (V)", text, StringComparison.Ordinal);
+        Assert.Matches(@"from bottleneck \(a → 0\):\s+μc = [0-9.]+ ± [0-9.]+ V", text);
+    }
+
+    [Fact]
+    public void TrackerExport_GivesTheSameOnsets_WithinTheirIntervals_AsTheRowsCleanedByHand()
+    {
+        using var dir = CliTestHost.NewFolder();
+        var raw = TrackerScenario.Write(Path.Combine(dir.Path, "raw"), Runs.Value);
+        var clean = TrackerScenario.Write(Path.Combine(dir.Path, "clean"), Runs.Value, clean: true);
+        using var a = JsonDocument.Parse(CliTestHost.Run("analyze", raw, "--json", "-").Out);
+        using var b = JsonDocument.Parse(CliTestHost.Run("analyze", clean, "--json", "-").Out);
+        foreach (var route in new[] { "from_bottleneck", "from_period" })
+        {
+            var ra = a.RootElement.GetProperty("onset").GetProperty(route);
+            var rb = b.RootElement.GetProperty("onset").GetProperty(route);
+            Assert.InRange(rb.GetProperty("value").GetDouble(), ra.GetProperty("ci95_low").GetDouble(), ra.GetProperty("ci95_high").GetDouble());
+            Assert.InRange(ra.GetProperty("value").GetDouble(), rb.GetProperty("ci95_low").GetDouble(), rb.GetProperty("ci95_high").GetDouble());
+        }
+    }
+
+    [Property(MaxTest = 6)]
+    public void RandomBlankingAndLowQualityGlitches_DoNotMoveTheOnsetBeyondItsInterval(PositiveInt seed, byte blankPercent, byte glitchPercent)
+    {
+        // Against the same motion exported with no trouble at all (CleanReference).
+        var trouble = new TrackerScenario.Trouble
+        {
+            Seed = seed.Get,
+            Blank = (blankPercent % 11) / 100.0,
+            LowGlitch = (glitchPercent % 9) / 100.0,
+            HighGlitch = 0,
+            Dropped = 0.02,
+            Bursts = 1 + (seed.Get % 4),
+        };
+        using var dir = CliTestHost.NewFolder();
+        var corrupted = TrackerScenario.Write(Path.Combine(dir.Path, "bad"), TrackerScenario.Simulate(trouble));
+        using var a = JsonDocument.Parse(ReferenceJson.Value);
+        var (code, json, err) = CliTestHost.Run("analyze", corrupted, "--json", "-");
+        Assert.True(code == 0, err);
+        using var b = JsonDocument.Parse(json);
+        foreach (var route in new[] { "from_bottleneck", "from_period" })
+        {
+            // The onset from the untroubled export lies inside the troubled export's own 95% interval: the trouble moves
+            // the estimate by less than the uncertainty it reports.
+            var ra = a.RootElement.GetProperty("onset").GetProperty(route);
+            var rb = b.RootElement.GetProperty("onset").GetProperty(route);
+            Assert.InRange(ra.GetProperty("value").GetDouble(), rb.GetProperty("ci95_low").GetDouble(), rb.GetProperty("ci95_high").GetDouble());
+        }
+    }
+
+    private static readonly Lazy<IReadOnlyList<TrackerScenario.Run>> CleanReference = new(() =>
+        TrackerScenario.Simulate(new TrackerScenario.Trouble { Dropped = 0, Bursts = 0, Blank = 0, LowGlitch = 0, HighGlitch = 0 }));
+
+    [Fact]
+    public void DemoDataset_IsTheScenarioAsWritten()
+    {
+        // datasets/demo-tracker holds a small version of the scenario (six turns a run) for users to try; regenerate it
+        // with NFFIT_UPDATE_GOLDEN=1 when the scenario changes.
+        var folder = Path.Combine(RepoRoot(), "datasets", "demo-tracker");
+        var runs = TrackerScenario.Simulate(revolutions: 6);
+        if (Environment.GetEnvironmentVariable("NFFIT_UPDATE_GOLDEN") == "1")
+        {
+            TrackerScenario.Write(folder, runs);
+        }
+
+        using var dir = CliTestHost.NewFolder();
+        TrackerScenario.Write(dir.Path, runs);
+        foreach (var file in Directory.GetFiles(dir.Path).Select(Path.GetFileName))
+        {
+            Assert.Equal(File.ReadAllText(dir.File(file!)), File.ReadAllText(Path.Combine(folder, file!)));
+        }
+    }
+
+    private static string RepoRoot()
+    {
+        var dir = new DirectoryInfo(AppContext.BaseDirectory);
+        while (dir is not null && !File.Exists(Path.Combine(dir.FullName, "NormalFormFit.sln")))
+        {
+            dir = dir.Parent;
+        }
+
+        return dir?.FullName ?? throw new InvalidOperationException("repository root not found");
+    }
+
+    private static readonly Lazy<string> ReferenceJson = new(() =>
+    {
+        using var dir = CliTestHost.NewFolder();
+        var manifest = TrackerScenario.Write(dir.Path, CleanReference.Value);
+        return CliTestHost.Run("analyze", manifest, "--json", "-").Out;
+    });
+}
