@@ -65,7 +65,7 @@ public sealed class ToolVersionTests
         Assert.Contains($"\"tool_version\": \"{NffitApp.Version}\"", File.ReadAllText(json), StringComparison.Ordinal);
     }
 
-    /// <summary>Shell completion (docs/install.md) asks the tool itself through System.CommandLine's suggest directive.</summary>
+    /// <summary>Shell completion (README, "Install as a .NET tool") asks the tool itself through System.CommandLine's suggest directive.</summary>
     [Fact]
     public void SuggestDirective_CompletesCommandsAndOptions()
     {
@@ -75,7 +75,7 @@ public sealed class ToolVersionTests
         Assert.Equal(0, code);
         Assert.Equal(["analyze"], Lines(commands));
         Assert.Equal(0, code2);
-        Assert.Equal(["--threads", "--time-column"], Lines(options));
+        Assert.Equal(["--threads", "--time-column", "--time-unit"], Lines(options));
     }
 
     private static string[] Lines(string text) => text.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries);
