@@ -18,6 +18,12 @@ public sealed record BottleneckOptions
     /// <summary>Bootstrap replicates over whole revolutions.</summary>
     public int BootstrapReplicates { get; init; } = 400;
 
+    /// <summary>
+    /// Whether the cubic and quartic Taylor terms of the field, estimated on a window twice as wide, are taken out
+    /// before the parabola fit (<see cref="TaylorRemainder"/>); without it a is biased by about q₄w⁴ ∝ a².
+    /// </summary>
+    public bool RemoveTaylorRemainder { get; init; } = true;
+
     /// <summary>Seed of the bootstrap draws.</summary>
     public int Seed { get; init; } = 7;
 
@@ -31,8 +37,9 @@ public sealed record BottleneckOptions
 /// <remarks>
 /// Weighted least squares of c₀ + c₁x + c₂x² on samples with |x| ≤ w, x = θ − θ₀, each sample weighted by the
 /// phase it covers; then b = c₂, θ* = θ₀ − c₁/(2c₂), a = c₀ − c₁²/(4c₂) (vertex of the parabola). The
-/// half-width w follows the bottleneck's own width, w = k√(a/b) (iterated): a fixed wide window biases a
-/// upward by the field's quartic term (order w⁴), a narrow one is noisy. Standard errors: bootstrap over
+/// half-width w follows the bottleneck's own width, w = k√(a/b) (iterated): a narrow window is noisy, and any window
+/// biases a by the field's Taylor terms beyond the parabola (order q₄w⁴ ∝ a², which bends the trend of a across μ);
+/// those terms are estimated on a window twice as wide and removed first (<see cref="TaylorRemainder"/>). Standard errors: bootstrap over
 /// whole revolutions of per-revolution sufficient statistics (O(B·R) after one O(n) pass). Needs samples
 /// on both sides of θ* in at least two revolutions.
 /// </remarks>
@@ -86,7 +93,16 @@ public static class BottleneckLocator
         // Final pass centred on θ*, window fixed: point estimate and bootstrap.
         perRev = Accumulate(phase, velocity, phaseWeight, revolution, revolutions, centre, w);
         total = Sum(perRev, null, revolutions);
-        if (!TrySolve(total, w, out vertex) || !(vertex.B > 0))
+        var wideWidth = TaylorRemainder.WideHalfWidth(w, options.MaxHalfWidth);
+        var wide = options.RemoveTaylorRemainder ? TaylorRemainder.AccumulateWide(phase, velocity, phaseWeight, revolution, revolutions, centre, wideWidth) : [];
+        var high = options.RemoveTaylorRemainder ? TaylorRemainder.AccumulateHigh(phase, phaseWeight, revolution, revolutions, centre, w) : [];
+        double[] Corrected(double[] sums, int[]? draw) =>
+            options.RemoveTaylorRemainder
+            && TaylorRemainder.TryHigherTerms(TaylorRemainder.Sum(wide, TaylorRemainder.WideStats, draw, revolutions), wideWidth) is { } q
+                ? TaylorRemainder.Remove(sums, TaylorRemainder.Sum(high, TaylorRemainder.HighStats, draw, revolutions), w, q)
+                : sums;
+
+        if (!TrySolve(total, w, out var plain) || !(plain.B > 0))
         {
             return null;
         }
@@ -94,14 +110,19 @@ public static class BottleneckLocator
         var samples = (int)total[Stats];
         var rms = ResidualRms(total, w);
 
-        var half = Accumulate(phase, velocity, phaseWeight, revolution, revolutions, RevolutionBlocks.Wrap(centre + vertex.Shift), w / 2);
-        var quartic = TrySolve(Sum(half, null, revolutions), w / 2, out var narrow) ? vertex.A - narrow.A : double.NaN;
+        // The check compares the plain parabola fits on the window and its half, as before any correction.
+        var half = Accumulate(phase, velocity, phaseWeight, revolution, revolutions, RevolutionBlocks.Wrap(centre + plain.Shift), w / 2);
+        var quartic = TrySolve(Sum(half, null, revolutions), w / 2, out var narrow) ? plain.A - narrow.A : double.NaN;
 
-        var seA = double.NaN;
-        var seB = double.NaN;
-        var seShift = double.NaN;
-        if (revolutions >= 2)
+        // Bootstrap standard errors of (a, b, shift), the correction redone in each replicate; NaN when more than a
+        // tenth of the replicates give no parabola opening upward.
+        (double A, double B, double Shift) Bootstrap(bool correct)
         {
+            if (revolutions < 2)
+            {
+                return (double.NaN, double.NaN, double.NaN);
+            }
+
             var rng = new Random(options.Seed);
             var draw = new int[revolutions];
             var a = new List<double>(options.BootstrapReplicates);
@@ -115,7 +136,8 @@ public static class BottleneckLocator
                     draw[rng.Next(revolutions)]++;
                 }
 
-                if (TrySolve(Sum(perRev, draw, revolutions), w, out var v) && v.B > 0)
+                var sums = Sum(perRev, draw, revolutions);
+                if (TrySolve(correct ? Corrected(sums, draw) : sums, w, out var v) && v.B > 0)
                 {
                     a.Add(v.A);
                     b.Add(v.B);
@@ -123,14 +145,28 @@ public static class BottleneckLocator
                 }
             }
 
-            if (a.Count >= 0.9 * options.BootstrapReplicates)
-            {
-                seA = SampleStatistics.StandardDeviation(a);
-                seB = SampleStatistics.StandardDeviation(b);
-                seShift = SampleStatistics.StandardDeviation(s);
-            }
+            return a.Count >= 0.9 * options.BootstrapReplicates
+                ? (SampleStatistics.StandardDeviation(a), SampleStatistics.StandardDeviation(b), SampleStatistics.StandardDeviation(s))
+                : (double.NaN, double.NaN, double.NaN);
         }
 
+        // The corrected fit when it is determined (its parabola opens upward in the data and in nine replicates of
+        // ten); otherwise the plain one: with few, noisy revolutions the degree-6 fit can be unstable (phase diffusion
+        // near onset), and then the correction would add noise, not remove bias.
+        vertex = plain;
+        var se = (A: double.NaN, B: double.NaN, Shift: double.NaN);
+        if (options.RemoveTaylorRemainder && TrySolve(Corrected(total, null), w, out var corrected) && corrected.B > 0)
+        {
+            se = Bootstrap(true);
+            vertex = double.IsNaN(se.A) ? plain : corrected;
+        }
+
+        if (double.IsNaN(se.A))
+        {
+            se = Bootstrap(false);
+        }
+
+        var (seA, seB, seShift) = se;
         var theta = RevolutionBlocks.Wrap(centre + vertex.Shift);
         return new BottleneckFit(
             new Estimate(theta, seShift),
