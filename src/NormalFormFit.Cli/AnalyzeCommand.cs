@@ -88,10 +88,20 @@ internal static class AnalyzeCommand
 
     internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr, string? outDir = null, ProgressLine? progress = null)
     {
-        if (outDir is not null && ReportFolder.Check(outDir) is { } why)
+        var outputs = new List<PlannedOutput>();
+        if (outDir is not null)
         {
-            stderr.WriteLine($"nffit: {outDir}: error: cannot write the report there: {why}");
-            return ExitCodes.BadInput;
+            outputs.Add(new PlannedOutput("--out", outDir, Folder: true));
+        }
+
+        if (jsonPath is not null)
+        {
+            outputs.Add(new PlannedOutput("--json", jsonPath, Folder: false));
+        }
+
+        if (CommandGuard.ManifestCommand(manifestPath, outputs, stderr) is { } refused)
+        {
+            return refused;
         }
 
         progress ??= ProgressLine.For(stderr, quiet || jsonPath == "-");

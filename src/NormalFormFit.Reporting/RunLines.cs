@@ -1,3 +1,4 @@
+using System.Globalization;
 using System.Text;
 using System.Text.Json;
 using NormalFormFit.Analysis;
@@ -21,6 +22,9 @@ public static class RunLines
 
     /// <summary>The earlier layout (estimates as objects, some blocks in PascalCase, NaN as a string): read, not written.</summary>
     public const string SchemaV1 = "nffit-run/1";
+
+    /// <summary>Longest line read (16 Mi characters; a run line is some tens of kilobytes).</summary>
+    public const int MaxLineChars = 16 << 20;
 
     private static readonly byte[] NewLine = [(byte)'\n'];
 
@@ -48,6 +52,8 @@ public static class RunLines
     {
         ArgumentNullException.ThrowIfNull(paths);
         var runs = new List<RunResult>();
+        var byContent = new Dictionary<string, string>(StringComparer.Ordinal);
+        var byParam = new Dictionary<double, string>();
         string? units = null;
         foreach (var path in paths)
         {
@@ -60,9 +66,15 @@ public static class RunLines
             var lineNumber = 0;
             try
             {
-                foreach (var line in System.IO.File.ReadLines(path, Encoding.UTF8))
+                using var reader = new StreamReader(path, Encoding.UTF8, detectEncodingFromByteOrderMarks: false);
+                while (ReadBoundedLine(reader) is { } line)
                 {
                     lineNumber++;
+                    if (line.Length > MaxLineChars)
+                    {
+                        return Loaded.Fail<RunSet>(BadLine(path, lineNumber, $"the line is longer than {MaxLineChars / (1 << 20)} Mi characters, far longer than any run result"));
+                    }
+
                     if (string.IsNullOrWhiteSpace(line))
                     {
                         continue;
@@ -73,17 +85,31 @@ public static class RunLines
                         return Loaded.Fail<RunSet>(BadLine(path, lineNumber, $"the line is not a run result of layout '{Schema}' or '{SchemaV1}'"));
                     }
 
+                    var place = $"{path}:{lineNumber}";
+                    if (byContent.TryGetValue(line.Trim(), out var same))
+                    {
+                        return Loaded.Fail<RunSet>(Duplicate(path, lineNumber, $"the same run result as {same}: a file given twice, or lines copied"));
+                    }
+
+                    if (byParam.TryGetValue(run.Param, out var sameParam))
+                    {
+                        return Loaded.Fail<RunSet>(Duplicate(path, lineNumber,
+                            string.Create(CultureInfo.InvariantCulture, $"a second run at param {run.Param:R} (the first is {sameParam}): a file given twice, or parts of a manifest that overlap")));
+                    }
+
+                    byContent[line.Trim()] = place;
+                    byParam[run.Param] = place;
                     runs.Add(run);
                     units ??= lineUnits;
                 }
             }
-            catch (JsonException e)
+            catch (JsonException)
             {
-                return Loaded.Fail<RunSet>(BadLine(path, lineNumber, $"the line is not valid JSON, misses a field or has a field of the wrong type ({e.Message})"));
+                return Loaded.Fail<RunSet>(BadLine(path, lineNumber, "the line is not valid JSON, misses a field or has a field of the wrong type"));
             }
-            catch (FormatException e)
+            catch (Exception e) when (e is FormatException or InvalidOperationException or ArgumentException)
             {
-                return Loaded.Fail<RunSet>(BadLine(path, lineNumber, $"a value is malformed ({e.Message})"));
+                return Loaded.Fail<RunSet>(BadLine(path, lineNumber, "a value is malformed"));
             }
             catch (Exception e) when (e is IOException or UnauthorizedAccessException)
             {
@@ -123,6 +149,35 @@ public static class RunLines
                 return null;
         }
     }
+
+    /// <summary>
+    /// The next line (without its end), read at most <see cref="MaxLineChars"/> + 1 characters far, so that a file
+    /// without line ends cannot take unbounded memory; null at the end.
+    /// </summary>
+    private static string? ReadBoundedLine(StreamReader reader)
+    {
+        var sb = new StringBuilder();
+        int c;
+        while ((c = reader.Read()) >= 0)
+        {
+            if (c == '\n')
+            {
+                return sb.Length > 0 && sb[^1] == '\r' ? sb.ToString(0, sb.Length - 1) : sb.ToString();
+            }
+
+            if (sb.Length > MaxLineChars)
+            {
+                return sb.ToString();
+            }
+
+            sb.Append((char)c);
+        }
+
+        return sb.Length > 0 ? sb.ToString() : null;
+    }
+
+    private static Diagnostic Duplicate(string path, int line, string what) =>
+        new(Severity.Error, "duplicate-run", $"{what}; each run may appear once: give each file once", path, line);
 
     private static Diagnostic BadLine(string path, int line, string what) =>
         new(Severity.Error, "bad-run-line", $"{what}; give files written by 'nffit analyze --runs-only', unedited", path, line);
