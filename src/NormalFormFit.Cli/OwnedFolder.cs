@@ -110,6 +110,11 @@ internal static class OwnedFolder
             TryDelete(tmp, steps);
             throw new FolderNotWrittenException($"cannot write the {kind} ({e.Message}); nothing was changed at '{dir}'", e);
         }
+        catch
+        {
+            TryDelete(tmp, steps); // Whatever went wrong, the half-written folder goes; the caller reports.
+            throw;
+        }
 
         if (!Directory.Exists(full))
         {
