@@ -14,7 +14,7 @@ internal static class SafeText
     public const int MaxEcho = 60;
 
     /// <summary>Longest message line; a longer one keeps its start (which names the place) and its end.</summary>
-    public const int MaxLine = 1000;
+    public const int MaxLine = 2000;
 
     /// <summary>
     /// Escapes one character: ESC → <c>\e</c>, BEL → <c>\a</c>, CR → <c>\r</c>, tab kept; other C0 and C1 controls, DEL,

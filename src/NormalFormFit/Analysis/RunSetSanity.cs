@@ -36,7 +36,7 @@ public static class RunSetSanity
         if (!double.IsFinite(max - min) || largest > MaxAbsParam)
         {
             return new Diagnostic(Severity.Error, "absurd-params",
-                string.Create(ic, $"parameter values as large as {largest:G4} cannot be fitted (|μ| must stay below {MaxAbsParam:G0}); give μ in units where the runs' values are moderate (e.g. subtract a reference value)"),
+                string.Create(ic, $"parameter values as large as {largest:G4} cannot be fitted (|μ| must stay below 1e15); give μ in units where the runs' values are moderate (e.g. subtract a reference value)"),
                 source);
         }
 
