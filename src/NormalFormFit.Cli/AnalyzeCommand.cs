@@ -72,6 +72,11 @@ internal static class AnalyzeCommand
                 },
                 Parallelism = Math.Max(1, pr.GetValue(threads)),
             };
+            if (CommandGuard.ColumnOptions(stderr, ("--time-column", pr.GetValue(timeCol)), ("--phase-column", pr.GetValue(phaseCol)), ("--x-column", pr.GetValue(xCol)), ("--y-column", pr.GetValue(yCol)), ("--event-column", pr.GetValue(eventCol))) is { } badColumn)
+            {
+                return badColumn;
+            }
+
             if (pr.GetValue(runsOnly) is not null && (pr.GetValue(json) is not null || pr.GetValue(outDir) is not null))
             {
                 stderr.WriteLine("nffit: usage: --runs-only writes run results only; make the reports with 'nffit combine FILE --json REPORT --out DIR'");
@@ -122,7 +127,7 @@ internal static class AnalyzeCommand
                 stderr.WriteLine($"nffit: {d}");
             }
 
-            return errors.Any(e => e.Code == InsufficientData.TooFewRuns) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+            return errors.Any(e => e.Code == InsufficientData.TooFewRuns || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
         var report = result.Value;

@@ -115,6 +115,32 @@ internal static class CommandGuard
         return diagnostics.Any(d => RunSetSanity.Codes.Contains(d.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
     }
 
+    /// <summary>A usage error when a column option is a position below 1 or empty.</summary>
+    public static int? ColumnOptions(TextWriter stderr, params (string Option, string? Value)[] columns)
+    {
+        foreach (var (option, value) in columns)
+        {
+            if (value is null)
+            {
+                continue;
+            }
+
+            if (string.IsNullOrWhiteSpace(value))
+            {
+                stderr.WriteLine($"nffit: usage: {option} needs a header name or a 1-based column position");
+                return ExitCodes.BadInput;
+            }
+
+            if (long.TryParse(value, System.Globalization.NumberStyles.AllowLeadingSign, System.Globalization.CultureInfo.InvariantCulture, out var n) && n < 1)
+            {
+                stderr.WriteLine($"nffit: usage: {option} {value}: column positions start at 1 (the first column); give 1 or more, or the header name");
+                return ExitCodes.BadInput;
+            }
+        }
+
+        return null;
+    }
+
     /// <summary>A usage error when an output option was given an empty name.</summary>
     public static int? EmptyOutput(IEnumerable<PlannedOutput> outputs, TextWriter stderr)
     {

@@ -16,7 +16,10 @@ public static class RunSetSanity
     public const double MinRelativeSpan = 1e-12;
 
     /// <summary>Codes of this class's diagnostics: they mean "cannot answer" (exit code 3).</summary>
-    public static IReadOnlySet<string> Codes { get; } = new HashSet<string>(StringComparer.Ordinal) { "same-data", "absurd-params" };
+    public static IReadOnlySet<string> Codes { get; } = new HashSet<string>(StringComparer.Ordinal) { "same-data", "absurd-params", "same-periods" };
+
+    /// <summary>Largest relative spread of the measured periods that counts as "all the same" (10⁻⁹: far below any measurement's error).</summary>
+    public const double SamePeriodTolerance = 1e-9;
 
     /// <summary>Null when the parameter values can be fitted; else the reason (code <c>absurd-params</c>).</summary>
     /// <param name="values">The μ of every run.</param>
@@ -48,6 +51,33 @@ public static class RunSetSanity
         }
 
         return null;
+    }
+
+    /// <summary>
+    /// Null unless three or more turning runs all have the same measured period to <see cref="SamePeriodTolerance"/>
+    /// (code <c>same-periods</c>): the period then does not depend on μ and no onset can be read from it, as when
+    /// the sample times are read as event times (<c>--kind events</c> on a column that is evenly spaced).
+    /// </summary>
+    /// <param name="runs">The analysed runs.</param>
+    /// <param name="source">The manifest or run-lines file, named in the message.</param>
+    public static Diagnostic? SamePeriods(IReadOnlyList<RunResult> runs, string source)
+    {
+        ArgumentNullException.ThrowIfNull(runs);
+        var periods = runs.Where(r => r.IsTurning && r.Period is not null && double.IsFinite(r.Period.Measured.Value) && r.Period.Measured.Value > 0)
+            .Select(r => r.Period!.Measured.Value).ToList();
+        if (periods.Count < 3 || runs.Select(r => r.Param).Distinct().Count() < 2)
+        {
+            return null;
+        }
+
+        var min = periods.Min();
+        var max = periods.Max();
+        return max - min <= SamePeriodTolerance * max
+            ? new Diagnostic(Severity.Error, "same-periods",
+                string.Create(CultureInfo.InvariantCulture,
+                    $"every run has the same period, {max:G6}, to {SamePeriodTolerance:G0}: it does not change with the parameter, so the runs show no approach to an onset; check --kind and the columns (evenly spaced sample times read as event times give this)"),
+                source)
+            : null;
     }
 
     /// <summary>
