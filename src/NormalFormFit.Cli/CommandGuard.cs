@@ -146,7 +146,7 @@ internal static class CommandGuard
     {
         foreach (var o in outputs)
         {
-            if (string.IsNullOrWhiteSpace(o.Path))
+            if (string.IsNullOrWhiteSpace(o.Path) || o.Path.Contains('\0', StringComparison.Ordinal))
             {
                 stderr.WriteLine(o.Folder
                     ? $"nffit: usage: {o.Option} needs a folder name; give e.g. {o.Option} report"

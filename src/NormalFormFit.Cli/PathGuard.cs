@@ -23,6 +23,11 @@ internal static class PathGuard
     /// <param name="what">What the file should be, for the message ("the manifest", "a run file").</param>
     public static Diagnostic? CheckInput(string path, string what)
     {
+        if (string.IsNullOrWhiteSpace(path) || path.Contains('\0', StringComparison.Ordinal))
+        {
+            return new Diagnostic(Severity.Error, "not-a-file", $"the file name is empty or holds a NUL character; give the path of {what}", path.Length == 0 ? "''" : path);
+        }
+
         if (Directory.Exists(path))
         {
             return new Diagnostic(Severity.Error, "not-a-file",
