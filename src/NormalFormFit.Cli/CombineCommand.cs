@@ -32,7 +32,7 @@ internal static class CombineCommand
             return refused;
         }
 
-        var set = RunLines.Read(files);
+        var set = RunLines.Read(files, uniqueRuns: true);
         if (set.Value is not null && RunSetSanity.Parameters([.. set.Value.Runs.Select(r => r.Param)], files[0]) is { } absurd)
         {
             return CommandGuard.Stop(stderr, absurd);

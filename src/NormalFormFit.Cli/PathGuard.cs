@@ -83,7 +83,9 @@ internal static class PathGuard
         // Cut at the last line end, so that a character split by the sniff limit is not counted as invalid.
         var end = head.Length == SniffBytes ? Math.Max(0, Array.LastIndexOf(head, (byte)'\n') + 1) : head.Length;
         var span = head.AsSpan(0, end);
-        if (System.Text.Unicode.Utf8.IsValid(span) || span.IndexOfAnyInRange((byte)0, (byte)8) >= 0)
+        // Latin-1 and Windows-1252 text uses 0x80–0xFD for letters and signs (é, µ, °, €); 0xFE and 0xFF (þ, ÿ) are
+        // rare in text and common in binary data, which the readers name as "not text".
+        if (System.Text.Unicode.Utf8.IsValid(span) || span.IndexOfAnyInRange((byte)0, (byte)8) >= 0 || span.IndexOfAnyInRange((byte)0xFE, (byte)0xFF) >= 0)
         {
             return null;
         }

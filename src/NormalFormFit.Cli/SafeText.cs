@@ -18,7 +18,7 @@ internal static class SafeText
 
     /// <summary>
     /// Escapes one character: ESC → <c>\e</c>, BEL → <c>\a</c>, CR → <c>\r</c>, tab kept; other C0 and C1 controls, DEL,
-    /// U+200B–U+200F, U+202A–U+202E, U+2060–U+2064, U+FEFF, lone surrogates and unassigned-format characters → <c>\uXXXX</c>.
+    /// U+200B–U+200F, U+202A–U+202E, U+2060–U+2064 and U+FEFF → <c>\uXXXX</c> (<see cref="EscapeAll"/> adds lone surrogates).
     /// Null when the character is shown as it is.
     /// </summary>
     public static string? Escape(char c) => c switch
@@ -30,7 +30,6 @@ internal static class SafeText
         '\n' => "\\n",
         < ' ' or '\u007F' or (>= '\u0080' and <= '\u009F') => Hex(c),
         (>= '\u200B' and <= '\u200F') or (>= '\u202A' and <= '\u202E') or (>= '\u2060' and <= '\u2064') or '\uFEFF' => Hex(c),
-        _ when char.IsSurrogate(c) => null,
         _ => null,
     };
 

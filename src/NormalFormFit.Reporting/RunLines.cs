@@ -48,7 +48,12 @@ public static class RunLines
     /// Reads the lines of one or more files, in the order given. Blank lines are skipped. A line that is not a run
     /// result comes back as an error naming file and line.
     /// </summary>
-    public static Loaded<RunSet> Read(IReadOnlyList<string> paths)
+    /// <param name="paths">The files, in order.</param>
+    /// <param name="uniqueRuns">
+    /// Refuse a run line that repeats an earlier one, or a second run at the same parameter value, naming both places
+    /// (code <c>duplicate-run</c>); <c>nffit combine</c> asks for this (docs/data-safety.md, clause 8).
+    /// </param>
+    public static Loaded<RunSet> Read(IReadOnlyList<string> paths, bool uniqueRuns = false)
     {
         ArgumentNullException.ThrowIfNull(paths);
         var runs = new List<RunResult>();
@@ -86,6 +91,13 @@ public static class RunLines
                     }
 
                     var place = $"{path}:{lineNumber}";
+                    if (!uniqueRuns)
+                    {
+                        runs.Add(run);
+                        units ??= lineUnits;
+                        continue;
+                    }
+
                     if (byContent.TryGetValue(line.Trim(), out var same))
                     {
                         return Loaded.Fail<RunSet>(Duplicate(path, lineNumber, $"the same run result as {same}: a file given twice, or lines copied"));
@@ -103,11 +115,16 @@ public static class RunLines
                     units ??= lineUnits;
                 }
             }
-            catch (JsonException)
+            catch (JsonException e)
             {
-                return Loaded.Fail<RunSet>(BadLine(path, lineNumber, "the line is not valid JSON, misses a field or has a field of the wrong type"));
+                return Loaded.Fail<RunSet>(BadLine(path, lineNumber, $"the line is not a run result: {Explain(e)}"));
             }
-            catch (Exception e) when (e is FormatException or InvalidOperationException or ArgumentException)
+            catch (FormatException e)
+            {
+                // Our own readers' messages (e.g. an unknown smoother name); .NET's JSON messages are not shown.
+                return Loaded.Fail<RunSet>(BadLine(path, lineNumber, $"a value is malformed ({e.Message})"));
+            }
+            catch (Exception e) when (e is InvalidOperationException or ArgumentException)
             {
                 return Loaded.Fail<RunSet>(BadLine(path, lineNumber, "a value is malformed"));
             }
@@ -174,6 +191,26 @@ public static class RunLines
         }
 
         return sb.Length > 0 ? sb.ToString() : null;
+    }
+
+    /// <summary>What is wrong with a line, in our words: .NET's JSON messages (positions from 0, type names) are not shown.</summary>
+    private static string Explain(JsonException e)
+    {
+        const string missing = "missing required properties including:";
+        var at = e.Message.IndexOf(missing, StringComparison.Ordinal);
+        if (at >= 0)
+        {
+            return $"it misses the field(s) {e.Message[(at + missing.Length)..].Trim().TrimEnd('.')}";
+        }
+
+        if (e.Path is { Length: > 1 } field)
+        {
+            return $"the field {field.TrimStart('$', '.')} has a value of the wrong type";
+        }
+
+        return e.BytePositionInLine is { } b
+            ? string.Create(CultureInfo.InvariantCulture, $"it is not valid JSON (at character {b + 1})")
+            : "it is not valid JSON";
     }
 
     private static Diagnostic Duplicate(string path, int line, string what) =>
