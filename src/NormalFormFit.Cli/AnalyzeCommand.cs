@@ -83,6 +83,11 @@ internal static class AnalyzeCommand
                 ParamColumn = pr.GetValue(paramCol),
                 ParamUnit = pr.GetValue(paramUnit),
             };
+            if (CommandGuard.ColumnOptions(stderr, ("--time-column", pr.GetValue(timeCol)), ("--phase-column", pr.GetValue(phaseCol)), ("--x-column", pr.GetValue(xCol)), ("--y-column", pr.GetValue(yCol)), ("--event-column", pr.GetValue(eventCol))) is { } badColumn)
+            {
+                return badColumn;
+            }
+
             if (pr.GetValue(runsOnly) is not null && (pr.GetValue(json) is not null || pr.GetValue(outDir) is not null))
             {
                 stderr.WriteLine("nffit: usage: --runs-only writes run results only; make the reports with 'nffit combine FILE --json REPORT --out DIR'");
@@ -99,10 +104,20 @@ internal static class AnalyzeCommand
 
     internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr, string? outDir = null, ProgressLine? progress = null)
     {
-        if (outDir is not null && ReportFolder.Check(outDir) is { } why)
+        var outputs = new List<PlannedOutput>();
+        if (outDir is not null)
         {
-            stderr.WriteLine($"nffit: {outDir}: error: cannot write the report there: {why}");
-            return ExitCodes.BadInput;
+            outputs.Add(new PlannedOutput("--out", outDir, Folder: true));
+        }
+
+        if (jsonPath is not null)
+        {
+            outputs.Add(new PlannedOutput("--json", jsonPath, Folder: false));
+        }
+
+        if (CommandGuard.ManifestCommand(manifestPath, outputs, stderr) is { } refused)
+        {
+            return refused;
         }
 
         progress ??= ProgressLine.For(stderr, quiet || jsonPath == "-");
@@ -123,7 +138,7 @@ internal static class AnalyzeCommand
                 stderr.WriteLine($"nffit: {d}");
             }
 
-            return errors.Any(e => e.Code == InsufficientData.TooFewRuns) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+            return errors.Any(e => e.Code == InsufficientData.TooFewRuns || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
         var report = result.Value;

@@ -27,7 +27,17 @@ internal static class CombineCommand
 
     internal static int Execute(IReadOnlyList<string> files, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr)
     {
-        var set = RunLines.Read(files);
+        if (CommandGuard.Combine(files, jsonPath is null ? [] : [new PlannedOutput("--json", jsonPath, Folder: false)], stderr) is { } refused)
+        {
+            return refused;
+        }
+
+        var set = RunLines.Read(files, uniqueRuns: true);
+        if (set.Value is not null && RunSetSanity.Parameters([.. set.Value.Runs.Select(r => r.Param)], files[0]) is { } absurd)
+        {
+            return CommandGuard.Stop(stderr, absurd);
+        }
+
         var result = set.Value is null
             ? new Ingest.Loaded<AnalysisReport>(null, set.Diagnostics)
             : ManifestAnalyzer.Combine(set.Value, files[0], set.Diagnostics);

@@ -19,6 +19,12 @@ internal static class CommandOutput
             settle?.Invoke();
             return true;
         }
+        catch (FolderNotWrittenException e)
+        {
+            settle?.Invoke();
+            stderr.WriteLine($"nffit: {outDir}: error: {e.Message}; check that the folder and the one holding it are writable");
+            return false;
+        }
         catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
             settle?.Invoke();

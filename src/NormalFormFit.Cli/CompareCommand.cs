@@ -61,10 +61,20 @@ internal static class CompareCommand
 
     internal static int Execute(string manifestPath, ModelExpression expression, CompareOptions options, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr, string? outDir = null)
     {
-        if (outDir is not null && ReportFolder.Check(outDir) is { } why)
+        var outputs = new List<PlannedOutput>();
+        if (outDir is not null)
         {
-            stderr.WriteLine($"nffit: {outDir}: error: cannot write the report there: {why}");
-            return ExitCodes.BadInput;
+            outputs.Add(new PlannedOutput("--out", outDir, Folder: true));
+        }
+
+        if (jsonPath is not null)
+        {
+            outputs.Add(new PlannedOutput("--json", jsonPath, Folder: false));
+        }
+
+        if (CommandGuard.ManifestCommand(manifestPath, outputs, stderr) is { } refused)
+        {
+            return refused;
         }
 
         // One set of reading and analysis options for the runs and, through AnalysedRunSet, for the replicates.
@@ -73,7 +83,7 @@ internal static class CompareCommand
         if (analysis.Value is null)
         {
             Report(stderr, analysis.Diagnostics, null);
-            return analysis.Diagnostics.Any(e => e.Code == InsufficientData.TooFewRuns) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+            return analysis.Diagnostics.Any(e => e.Code == InsufficientData.TooFewRuns || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
         var runs = new AnalysedRunSet(new RunSet(analysis.Value.Runs, analysis.Value.ParamUnits), analyzeOptions);

@@ -11,6 +11,13 @@ internal static class NffitApp
     /// <summary>Runs the tool with injected writers; returns the exit code. Never throws.</summary>
     public static int Run(string[] args, TextWriter stdout, TextWriter stderr)
     {
+        // Every message passes through one writer that escapes what could act on a terminal (docs/data-safety.md).
+        using var safe = new SafeMessageWriter(stderr);
+        return RunSafely(args, stdout, safe);
+    }
+
+    private static int RunSafely(string[] args, TextWriter stdout, TextWriter stderr)
+    {
         var verbose = args.Contains("--verbose");
         try
         {
@@ -22,7 +29,9 @@ internal static class NffitApp
                 CombineCommand.Create(stdout, stderr),
             };
             ToolVersion.Install(root, stdout);
-            var parsed = root.Parse(args);
+
+            // No response files: '@m.csv' is a file name, not a file of more arguments.
+            var parsed = root.Parse(args, new ParserConfiguration { ResponseFileTokenReplacer = null });
             if (parsed.Errors.Count > 0)
             {
                 foreach (var e in parsed.Errors)

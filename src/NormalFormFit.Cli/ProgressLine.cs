@@ -12,8 +12,12 @@ internal sealed class ProgressLine
     private ProgressLine(TextWriter? writer) => this.writer = writer;
 
     /// <summary>A display on <paramref name="stderr"/> when it is an interactive console and not <paramref name="quiet"/>.</summary>
-    public static ProgressLine For(TextWriter stderr, bool quiet) =>
-        new(!quiet && ReferenceEquals(stderr, Console.Error) && !Console.IsErrorRedirected ? stderr : null);
+    public static ProgressLine For(TextWriter stderr, bool quiet)
+    {
+        // The redraws' CRs are ours: they go around the message writer that escapes echoed CRs.
+        var raw = stderr is SafeMessageWriter safe ? safe.Inner : stderr;
+        return new(!quiet && ReferenceEquals(raw, Console.Error) && !Console.IsErrorRedirected ? raw : null);
+    }
 
     /// <summary>Shows "what done/total".</summary>
     public void Report(string what, int done, int total)

@@ -9,37 +9,21 @@ using NormalFormFit.Reporting.Tables;
 namespace NormalFormFit.Cli;
 
 /// <summary>
-/// Writes the report folder whole or not at all: everything goes to a temporary folder beside the target,
-/// which then takes the target's place by rename. A folder is only replaced when it is empty or holds an
-/// earlier report (it carries the marker file), so no user files are ever overwritten.
+/// Writes the report folder whole or not at all through <see cref="OwnedFolder"/>: a folder is only replaced when it
+/// is empty or holds an earlier report whose every file is listed, unchanged, in the marker file, so no user file is
+/// ever deleted or overwritten.
 /// </summary>
 internal static class ReportFolder
 {
     /// <summary>File that marks a folder as written by nffit (so a later run may replace it).</summary>
     public const string Marker = ".nffit-report";
 
-    /// <summary>Checks the target before any work: null when it can be written, else the reason.</summary>
-    public static string? Check(string dir)
-    {
-        var full = Full(dir);
-        var parent = Path.GetDirectoryName(full);
-        if (parent is null || !Directory.Exists(parent))
-        {
-            return $"the folder that should hold it, '{parent}', does not exist; create it first";
-        }
+    /// <summary>What the marker says wrote the folder.</summary>
+    private const string Kind = "report";
 
-        if (File.Exists(full))
-        {
-            return "a file of that name exists; give the name of a new or empty folder";
-        }
-
-        if (Directory.Exists(full) && Directory.EnumerateFileSystemEntries(full).Any() && !File.Exists(Path.Combine(full, Marker)))
-        {
-            return "the folder exists and holds files that are not an nffit report; give a new or empty folder";
-        }
-
-        return null;
-    }
+    /// <summary>Checks the target before any work: null when it can be written, else the error (docs/data-safety.md, clause 2).</summary>
+    public static Diagnostic? Check(string dir) =>
+        OwnedFolder.Check(dir, Marker, Kind, "--out", replace: true, howToReplace: string.Empty);
 
     /// <summary>Renders and writes every file of the report; reports each step to <paramref name="progress"/>.</summary>
     /// <param name="dir">Target folder.</param>
@@ -47,21 +31,11 @@ internal static class ReportFolder
     /// <param name="source">The manifest's name, for the page's heading.</param>
     /// <param name="progress">Step, done, total.</param>
     /// <param name="model">A model comparison of the same runs: adds its figure, a section of the page, model.json and its text.</param>
-    public static void Write(string dir, AnalysisReport report, string source, Action<string, int, int>? progress = null, ModelComparison? model = null)
+    /// <param name="steps">The file-system steps of the swap (a test injects a failing one).</param>
+    public static void Write(string dir, AnalysisReport report, string source, Action<string, int, int>? progress = null, ModelComparison? model = null, IFolderSteps? steps = null)
     {
-        var full = Full(dir);
-        var parent = Path.GetDirectoryName(full)!;
-        var name = Path.GetFileName(full);
-        var tmp = Path.Combine(parent, $".{name}.{Environment.ProcessId}.tmp");
-        var old = Path.Combine(parent, $".{name}.{Environment.ProcessId}.old");
-        try
+        OwnedFolder.Write(dir, Marker, Kind, tmp =>
         {
-            if (Directory.Exists(tmp))
-            {
-                Directory.Delete(tmp, recursive: true);
-            }
-
-            Directory.CreateDirectory(tmp);
             var figures = ReportFigures.Build(report).ToList();
             if (model is not null && ReportFigures.Model(report, model) is { } modelFigure)
             {
@@ -101,35 +75,8 @@ internal static class ReportFolder
             File.WriteAllText(Path.Combine(tmp, "report.txt"), text, Utf8);
             File.WriteAllText(Path.Combine(tmp, "report.html"),
                 HtmlReport.Build(report, rendered, new HtmlReportOptions { Source = source, ToolVersion = NffitApp.Version }, model), Utf8);
-            File.WriteAllText(Path.Combine(tmp, Marker), "written by nffit " + NffitApp.Version + "\n", Utf8);
-
-            if (Directory.Exists(full))
-            {
-                Directory.Move(full, old);
-                Directory.Move(tmp, full);
-                Directory.Delete(old, recursive: true);
-            }
-            else
-            {
-                Directory.Move(tmp, full);
-            }
-        }
-        finally
-        {
-            if (Directory.Exists(tmp))
-            {
-                Directory.Delete(tmp, recursive: true);
-            }
-
-            // Only left behind if the swap failed half-way: put the earlier report back.
-            if (Directory.Exists(old) && !Directory.Exists(full))
-            {
-                Directory.Move(old, full);
-            }
-        }
+        }, steps);
     }
 
     private static readonly UTF8Encoding Utf8 = new(encoderShouldEmitUTF8Identifier: false);
-
-    private static string Full(string dir) => Path.TrimEndingDirectorySeparator(Path.GetFullPath(dir));
 }

@@ -12,6 +12,11 @@ internal static class RunsOnlyCommand
 {
     public static int Execute(string manifestPath, string linesPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr, ProgressLine progress)
     {
+        if (CommandGuard.ManifestCommand(manifestPath, [new PlannedOutput("--runs-only", linesPath, Folder: false)], stderr) is { } refused)
+        {
+            return refused;
+        }
+
         var result = ManifestAnalyzer.AnalyzeRuns(manifestPath, options, progress.Counter("runs analysed"));
         progress.Clear();
         if (result.Value is null)

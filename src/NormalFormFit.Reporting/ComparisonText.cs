@@ -20,6 +20,7 @@ public static class ComparisonText
         {
             w.WriteLine(p.Fixed
                 ? string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  (held)")
+                : double.IsNaN(p.Value) ? $"  {p.Name,-10} unidentifiable: the data do not determine it"
                 : string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  ± {p.StandardError:G2}   95% [{p.Ci95.Low:G6}, {p.Ci95.High:G6}]"));
         }
 

@@ -197,12 +197,19 @@ public static class ManifestAnalyzer
         if (usable < OnsetAnalysis.MinimumRuns)
         {
             var notTurning = runs.Count(r => !r.IsTurning);
+            var tooShort = runs.Count(r => r.Samples < RunChecks.MinimumSamples);
+            var shortNote = tooShort > 0 ? $", {tooShort} of them with fewer than {RunChecks.MinimumSamples} samples, too few to analyse" : string.Empty;
             return new Loaded<AnalysisReport>(null,
             [
                 new Diagnostic(Severity.Error, InsufficientData.TooFewRuns,
-                    $"only {usable} of {runs.Count} runs turn and can be analysed ({notTurning} do not turn); an onset needs at least {OnsetAnalysis.MinimumRuns}: add runs above onset",
+                    $"only {usable} of {runs.Count} runs turn and can be analysed ({notTurning} do not turn{shortNote}); an onset needs at least {OnsetAnalysis.MinimumRuns}: add runs above onset",
                     source),
             ]);
+        }
+
+        if (RunSetSanity.SamePeriods(runs, source) is { } same)
+        {
+            return new Loaded<AnalysisReport>(null, [same]);
         }
 
         var report = OnsetAnalysis.Combine(runs, set.ParamUnits) with { TimeUnit = set.TimeUnit, ParamName = set.ParamName };

@@ -98,6 +98,11 @@ public static class ModelComparer
     private static List<string> CheckOptions(ModelExpression model, CompareOptions options)
     {
         var problems = options.Validate().ToList();
+        foreach (var taken in model.Parameters.Where(n => n is "c0" or "c1"))
+        {
+            problems.Add($"the parameter name '{taken}' is taken by the map μ_model = c0 + c1·μ_lab; rename the expression's parameter (e.g. k0)");
+        }
+
         foreach (var name in options.Start.Keys.Concat(options.Fixed.Keys))
         {
             if (!model.Parameters.Contains(name))
@@ -155,17 +160,26 @@ public static class ModelComparer
 
         var fullValue = problem.Expand(freeValue);
         var pCount = model.Parameters.Count;
+        var unidentifiable = Identifiability.Unidentifiable(problem, fit.Parameters);
         FittedParameter Parameter(string name, int f)
         {
             var free = problem.FreeIndexOf(f);
             return free < 0
                 ? new FittedParameter(name, fullValue[f], 0.0, true)
-                : new FittedParameter(name, fullValue[f], freeSe[free], false) { Quantile = t, Bias = freeBias[free] };
+                : unidentifiable.Contains(free)
+                    ? new FittedParameter(name, double.NaN, double.NaN, false) { Quantile = t }
+                    : new FittedParameter(name, fullValue[f], freeSe[free], false) { Quantile = t, Bias = freeBias[free] };
         }
 
         var parameters = Enumerable.Range(0, pCount).Select(i => Parameter(model.Parameters[i], i)).ToList();
         var offset = Parameter("c0", pCount);
         var scaleMap = Parameter("c1", pCount + 1);
+        var names = parameters.Append(offset).Append(scaleMap).Where(q => !q.Fixed && double.IsNaN(q.Value)).Select(q => q.Name).ToList();
+        if (names.Count > 0)
+        {
+            notes.Add(new Diagnostic(Severity.Warning, "unidentifiable", string.Create(ic,
+                $"the data do not determine {string.Join(", ", names)}: the fit's information matrix is singular or near-singular in {(names.Count == 1 ? "it" : "them")} (the model does not depend on {(names.Count == 1 ? "it" : "them")}, or only through a combination); no value or error is given: hold {(names.Count == 1 ? "it" : "them")} with --fix or change the model")));
+        }
 
         // Onset and its interval, from the replicates' onsets alike.
         var onset = new Estimate(onsetHat, double.NaN);

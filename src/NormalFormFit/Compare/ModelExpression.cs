@@ -41,6 +41,12 @@ public sealed class ModelExpression
     /// <summary>True when the expression contains <c>theta</c>.</summary>
     public bool UsesTheta { get; }
 
+    /// <summary>Longest expression, in characters (docs/model-expressions.md).</summary>
+    public const int MaxLength = 1000;
+
+    /// <summary>Most operations (numbers, names, operators and function calls) in an expression: bounds the cost of one evaluation.</summary>
+    public const int MaxNodes = 300;
+
     /// <summary>Names the language reserves: variables, constants and functions.</summary>
     public static IReadOnlyList<string> Reserved { get; } = ["theta", "mu", "pi", .. ExpressionParser.Functions];
 
@@ -53,10 +59,22 @@ public sealed class ModelExpression
     public static Loaded<ModelExpression> Parse(string text, string source = "--model")
     {
         ArgumentNullException.ThrowIfNull(text);
+        if (text.Length > MaxLength)
+        {
+            return Loaded.Fail<ModelExpression>(new Diagnostic(Severity.Error, "expression-too-long",
+                $"the expression has {text.Length} characters, more than the {MaxLength} allowed (docs/model-expressions.md); write the model shorter", source));
+        }
+
         var parsed = ExpressionParser.Parse(text, source);
         if (parsed.Program is null)
         {
             return Loaded.Fail<ModelExpression>(parsed.Error!);
+        }
+
+        if (parsed.Program.Length > MaxNodes)
+        {
+            return Loaded.Fail<ModelExpression>(new Diagnostic(Severity.Error, "expression-too-long",
+                $"the expression has {parsed.Program.Length} operations, more than the {MaxNodes} allowed (each is evaluated millions of times in a comparison; docs/model-expressions.md); write the model shorter", source));
         }
 
         return new Loaded<ModelExpression>(

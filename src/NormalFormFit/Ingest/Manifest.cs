@@ -106,6 +106,17 @@ public sealed record Manifest(string Path, IReadOnlyList<ManifestEntry> Entries)
                     $"found {reader.FieldCount} field(s), expected {header.Length} ({string.Join(",", header)})", path, reader.LineNumber, 1));
             }
 
+            if (reader.FieldCount > header.Length)
+            {
+                // A decimal comma in a comma-separated manifest ("run.csv,1,01") splits the number in two: never guess.
+                var hint = reader.Delimiter == Delimiter.Comma
+                    ? $"; a number written with a decimal comma splits into two fields ('{reader.FieldText(paramCol)},{reader.FieldText(paramCol + 1 < reader.FieldCount ? paramCol + 1 : paramCol)}'?): write it with a decimal point, or quote the field"
+                    : "; remove the extra fields or add their names to the header";
+                return Loaded.Fail<Manifest>(new Diagnostic(Severity.Error, "too-many-fields",
+                    $"found {reader.FieldCount} fields, but the header has {header.Length} ({string.Join(",", header)}){hint}",
+                    path, reader.LineNumber, reader.ColumnOf(header.Length)));
+            }
+
             var file = reader.FieldText(fileCol);
             if (file.Length == 0)
             {

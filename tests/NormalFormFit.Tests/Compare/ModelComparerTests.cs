@@ -112,7 +112,7 @@ public class ModelComparerTests
             var stderr = new StringWriter();
             var code = NffitApp.Run(["compare", "nowhere.csv", "--model", "mu - a*sin(theta)", "--out", dir], stdout, stderr);
             Assert.Equal(2, code);
-            Assert.Contains("holds files that are not an nffit report", stderr.ToString(), StringComparison.Ordinal);
+            Assert.Contains("holds files nffit did not write", stderr.ToString(), StringComparison.Ordinal);
             Assert.Equal(["notes.txt"], Directory.GetFiles(dir).Select(Path.GetFileName));
         }
         finally

@@ -71,7 +71,7 @@ public class ReportFolderTests(DemoFolder demo)
     {
         var target = Path.Combine(demo.Root, "again");
         Assert.Equal(0, DemoFolder.Run("analyze", demo.Manifest, "--out", target, "--quiet").Code);
-        File.WriteAllText(Path.Combine(target, "field.csv"), "stale");
+        File.Delete(Path.Combine(target, "field.csv")); // A listed file that is missing does not stop a replace; a changed one does (DataSafetyTests).
 
         var (code, _, stderr) = DemoFolder.Run("analyze", demo.Manifest, "--out", target, "--quiet");
 
@@ -91,7 +91,7 @@ public class ReportFolderTests(DemoFolder demo)
         // Exit code 2 = bad input or usage (README, "Exit codes").
         Assert.Equal(2, code);
         Assert.Equal(string.Empty, stdout);
-        Assert.Contains("not an nffit report", stderr, StringComparison.Ordinal);
+        Assert.Contains("holds files nffit did not write", stderr, StringComparison.Ordinal);
         Assert.Single(stderr.TrimEnd().Split('\n'));
         Assert.Equal(["mine.txt"], Directory.GetFiles(target).Select(Path.GetFileName));
         Assert.Equal("keep me", File.ReadAllText(Path.Combine(target, "mine.txt")));
