@@ -29,6 +29,14 @@ public static class OnsetAnalysis
     /// </summary>
     public const double LawMisfitFactor = 4.0;
 
+    /// <summary>
+    /// Runs whose smoothed phase scatters by less than this (radians) about the spline carry no measurement noise: a
+    /// simulation without noise, or data smoothed before export. No instrument resolves a phase this finely (a 16-bit
+    /// encoder resolves about 1e-4 rad; common practice, no source), so the per-run errors then reflect numerical
+    /// error only.
+    /// </summary>
+    public const double NoiseFreePhaseSd = 1e-6;
+
     /// <summary>Analyses a set of run results.</summary>
     /// <remarks>
     /// Noise-dominated runs are left out of both routes while three runs remain. Runs below onset enter the period route
@@ -79,7 +87,14 @@ public static class OnsetAnalysis
             diags.Add(caveat);
         }
 
-        var agreement = TrendFit.Agreement(fromA, fromT, ExplainDisagreement(runs, verdict.Kind, noisy.Count));
+        var noiseFree = NoiseFree(runs);
+        if (noiseFree)
+        {
+            diags.Add(new Diagnostic(Severity.Warning, "noise-free-runs",
+                "the runs carry no measurement noise (the phase scatters by less than 1e-6 rad about its smooth curve: a simulation without noise, or data smoothed before export): the per-run errors reflect numerical error only, so the intervals are far too narrow and the routes' model error decides; read each onset only to about the difference between the two routes, or analyse the raw recordings"));
+        }
+
+        var agreement = TrendFit.Agreement(fromA, fromT, ExplainDisagreement(runs, verdict.Kind, noisy.Count, noiseFree));
         if (!agreement.Consistent && double.IsFinite(agreement.Z))
         {
             diags.Add(new Diagnostic(Severity.Warning, "routes-disagree", string.Create(inv,
@@ -272,12 +287,24 @@ public static class OnsetAnalysis
     public static int UsableRuns(IReadOnlyList<RunResult> runs) =>
         runs.Count(r => r.IsTurning && (r.Bottleneck is not null || r.Period is { Revolutions: >= 2 }));
 
-    private static string ExplainDisagreement(IReadOnlyList<RunResult> runs, OnsetKind verdict, int noisy)
+    /// <summary>True when at least <see cref="MinimumRuns"/> turning runs were smoothed and none shows measurement noise.</summary>
+    private static bool NoiseFree(IReadOnlyList<RunResult> runs)
+    {
+        var smoothed = runs.Where(r => r.IsTurning && r.Smoothing is not null).ToList();
+        return smoothed.Count >= MinimumRuns && smoothed.All(r => r.Smoothing!.NoiseSd < NoiseFreePhaseSd);
+    }
+
+    private static string ExplainDisagreement(IReadOnlyList<RunResult> runs, OnsetKind verdict, int noisy, bool noiseFree)
     {
         var turning = runs.Where(r => r.IsTurning).ToList();
         if (turning.Count == 0)
         {
             return "no turning runs";
+        }
+
+        if (noiseFree)
+        {
+            return "the runs carry no measurement noise, so both intervals reflect numerical error only and are far too narrow: the routes' model error decides";
         }
 
         var far = turning.Count(r => r.Flags.Contains(RunFlag.FarFromOnset));

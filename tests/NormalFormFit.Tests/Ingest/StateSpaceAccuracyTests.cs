@@ -106,17 +106,24 @@ public class StateSpaceAccuracyTests(ITestOutputHelper output)
     /// misfit as scatter. Five terms would cover (two residual degrees of freedom), which no information criterion
     /// chooses with eight runs. See docs/methods.md, "Period route: the square-root law".
     /// </summary>
-    [Theory(Skip = "known limitation: truncation error of the period law exceeds the Birge-scaled interval for near-noise-free periods (docs/methods.md)")]
+    /// <summary>
+    /// Known limitation, asserted as measured (issue "intervals that stay honest", open): with near-noise-free periods the
+    /// period law's truncation error exceeds the Birge-scaled interval, so the interval misses the fold; the analysis
+    /// must then say so by its law-misfit warning. When model averaging over the period laws lands, this test is to
+    /// become the coverage check again (the interval contains the onset).
+    /// </summary>
+    [Theory]
     [InlineData(true)]
     [InlineData(false)]
-    public void PeriodInterval_CoversTheMorrisLecarOnset(bool spikeTimes)
+    public void PeriodInterval_MissesTheMorrisLecarOnset_AndTheLawMisfitIsReported(bool spikeTimes)
     {
         var (onset, positions, spikes, currents) = Runs.Value;
         var runs = (spikeTimes ? spikes : positions)
             .Select((p, i) => RecordingAnalyzer.Analyze(p, currents[i], p.File, null, null, []).Value!).ToList();
         var report = OnsetAnalysis.Combine(runs);
         Log(onset, report);
-        Assert.True(report.FromPeriod.Ci95.Contains(onset));
+        Assert.False(report.FromPeriod.Ci95.Contains(onset), "the period interval now covers the fold: turn this test back into the coverage check");
+        Assert.Contains(report.AllDiagnostics, d => d.Code == "law-misfit" && d.Message.Contains("period route", StringComparison.Ordinal));
     }
 
     private void Log(double onset, AnalysisReport report)

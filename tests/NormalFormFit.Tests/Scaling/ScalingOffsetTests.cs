@@ -142,12 +142,18 @@ public class ScalingOffsetTests(ITestOutputHelper output)
     /// chosen in 155), against 193/200 for the offset form's own interval. Model averaging over the forms (Burnham &amp;
     /// Anderson 2002, §4.3) would carry the choice into the interval; not done yet.
     /// </summary>
-    [Fact(Skip = "known limitation: interval conditional on the AICc choice of form; see the summary and docs/methods.md §7")]
-    public void ExponentIntervalAsReported_WithLargerErrors_IsCalibrated()
+    /// <remarks>
+    /// Asserted as measured while the gap is open (issue "intervals that stay honest"): coverage stays below the
+    /// binomial band's lower end. When model averaging lands, this test is to become the calibration check again
+    /// (covered within the band).
+    /// </remarks>
+    [Fact]
+    public void ExponentIntervalAsReported_WithLargerErrors_UnderCoversAsMeasured()
     {
         var (covered, _, z) = Coverage(0.003, asReported: true);
         var cal = Reference().GetProperty("calibration");
-        Assert.InRange(covered, cal.GetProperty("low").GetInt32(), z.Count);
+        output.WriteLine($"as reported, errors 0.3%: coverage {covered}/{z.Count} (band from {cal.GetProperty("low").GetInt32()})");
+        Assert.InRange(covered, 120, cal.GetProperty("low").GetInt32() - 1);
     }
 
     private static (int Covered, int OffsetChosen, List<double> Z) Coverage(double level, bool asReported)
