@@ -104,16 +104,7 @@ internal static class AnalyzeCommand
 
     internal static int Execute(string manifestPath, string? jsonPath, bool quiet, AnalyzeOptions options, TextWriter stdout, TextWriter stderr, string? outDir = null, ProgressLine? progress = null)
     {
-        var outputs = new List<PlannedOutput>();
-        if (outDir is not null)
-        {
-            outputs.Add(new PlannedOutput("--out", outDir, Folder: true));
-        }
-
-        if (jsonPath is not null)
-        {
-            outputs.Add(new PlannedOutput("--json", jsonPath, Folder: false));
-        }
+        var outputs = PlannedOutput.OfReport(outDir, jsonPath);
 
         if (CommandGuard.ManifestCommand(manifestPath, outputs, stderr) is { } refused)
         {

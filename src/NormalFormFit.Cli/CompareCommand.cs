@@ -61,16 +61,7 @@ internal static class CompareCommand
 
     internal static int Execute(string manifestPath, ModelExpression expression, CompareOptions options, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr, string? outDir = null)
     {
-        var outputs = new List<PlannedOutput>();
-        if (outDir is not null)
-        {
-            outputs.Add(new PlannedOutput("--out", outDir, Folder: true));
-        }
-
-        if (jsonPath is not null)
-        {
-            outputs.Add(new PlannedOutput("--json", jsonPath, Folder: false));
-        }
+        var outputs = PlannedOutput.OfReport(outDir, jsonPath);
 
         if (CommandGuard.ManifestCommand(manifestPath, outputs, stderr) is { } refused)
         {

@@ -6,7 +6,25 @@ namespace NormalFormFit.Cli;
 /// <param name="Option">The option as the user wrote it, e.g. <c>--json</c>.</param>
 /// <param name="Path">The path as given.</param>
 /// <param name="Folder">True for a folder the command replaces or writes into.</param>
-internal sealed record PlannedOutput(string Option, string Path, bool Folder);
+internal sealed record PlannedOutput(string Option, string Path, bool Folder)
+{
+    /// <summary>The outputs of a reporting command: the report folder (<c>--out</c>) and the JSON file (<c>--json</c>), each when given.</summary>
+    public static List<PlannedOutput> OfReport(string? outDir, string? jsonPath)
+    {
+        var outputs = new List<PlannedOutput>();
+        if (outDir is not null)
+        {
+            outputs.Add(new PlannedOutput("--out", outDir, Folder: true));
+        }
+
+        if (jsonPath is not null)
+        {
+            outputs.Add(new PlannedOutput("--json", jsonPath, Folder: false));
+        }
+
+        return outputs;
+    }
+}
 
 /// <summary>
 /// Checks every input and output path of a command before any work (docs/data-safety.md, clauses 1 and 7): an input
