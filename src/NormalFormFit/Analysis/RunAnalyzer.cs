@@ -148,7 +148,7 @@ public static class RunAnalyzer
         found.Raise(RunChecks.NoBottleneck(file, bottleneck));
 
         var reference = RevolutionBlocks.Wrap((bottleneck?.Phase.Value ?? slow) + Math.PI);
-        var periods = PeriodMeasurement.Measure(tt, ph, segs, double.IsFinite(reference) ? reference : 0.0);
+        var periods = PeriodMeasurement.MeasureAroundFastSide(tt, ph, v, segs, double.IsFinite(reference) ? reference : 0.0);
         var fromBottleneck = bottleneck?.PassageTime ?? new Estimate(double.NaN, double.NaN);
         var summary = new PeriodSummary(periods.Mean, fromBottleneck, field.Period, periods.Revolutions);
         found.Raise(RunChecks.FewRevolutions(file, periods.Revolutions));

@@ -126,8 +126,8 @@ public class TrackerAcceptanceTests
     }
 
     // Fixed cases, not FsCheck's random draws: a property run with a new seed each time made CI flaky. The case
-    // (11, 7, 53) is the counterexample FsCheck found (period route moved beyond its interval); it is asserted as
-    // measured in PeriodRoute_UnderSomeTrouble_MovesBeyondItsInterval below and is an open note of the issue.
+    // (11, 7, 53) is the counterexample FsCheck found when passages inside bridged gaps were timed on the chord (the
+    // period route moved by about three standard errors); the cases from seed 12 on were added afterwards, untuned.
     [Theory]
     [InlineData(1, 5, 4)]
     [InlineData(2, 10, 8)]
@@ -135,20 +135,36 @@ public class TrackerAcceptanceTests
     [InlineData(4, 10, 0)]
     [InlineData(5, 3, 3)]
     [InlineData(6, 8, 6)]
+    [InlineData(11, 7, 53)]
+    [InlineData(12, 9, 7)]
+    [InlineData(13, 10, 8)]
+    [InlineData(17, 6, 5)]
+    [InlineData(21, 8, 8)]
     public void RandomBlankingAndLowQualityGlitches_DoNotMoveTheOnsetBeyondItsInterval(int seed, byte blankPercent, byte glitchPercent)
     {
         Assert.All(Moves(seed, blankPercent, glitchPercent), m => Assert.InRange(m.Reference, m.Low, m.High));
     }
 
-    [Fact]
-    public void PeriodRoute_UnderSomeTrouble_MovesBeyondItsInterval()
+    // The same property drawn by FsCheck: random seeds, blanking up to 10 % and low-quality glitches up to 8 % of the
+    // rows. The draw is replayed from a fixed generator state so that CI is repeatable; change the state to explore.
+    [Property(MaxTest = 8, Replay = "(20261203,97)")]
+    public void RandomBlankingAndLowQualityGlitches_DrawnByFsCheck_DoNotMoveTheOnsetBeyondItsInterval(PositiveInt seed, byte blankPercent, byte glitchPercent)
     {
-        // Known gap, asserted as measured: with this trouble the period route's onset moves by about three of its
-        // standard errors (bottleneck route unaffected); when revolution timing across bridged gaps is fixed, this case
-        // joins the theory above.
-        var moves = Moves(11, 7, 53);
-        Assert.InRange(moves[0].Reference, moves[0].Low, moves[0].High);
-        Assert.False(moves[1].Reference >= moves[1].Low && moves[1].Reference <= moves[1].High, "the period route now covers: move this case into the theory above");
+        Assert.All(Moves(seed.Get % 1000, blankPercent, glitchPercent), m => Assert.InRange(m.Reference, m.Low, m.High));
+    }
+
+    [Fact]
+    public void BottleneckRoute_WithDroppedFramesAndFewGlitches_MovesBeyondItsInterval_AsMeasured()
+    {
+        // Known gap, asserted as measured: FsCheck (generator state (777,13), 40 draws) shrank a counterexample to seed 1,
+        // no blank rows, 4 % low-quality glitches (plus this test's 2 % dropped frames and two bursts). The bottleneck
+        // route moves from 6.00048 V (untroubled) to 5.9967 ± 0.0013 V, about three of its standard errors: the runs at
+        // 6.12 V and 6.24 V get a 1–2 % larger a from the same motion with a few percent fewer frames. The troubled
+        // interval still covers the true 6 V. When the bottleneck fit is made stable against missing frames near the
+        // bottleneck, this case fails here: move it into the theory above.
+        var moves = Moves(1, 0, 4);
+        Assert.False(moves[0].Reference >= moves[0].Low && moves[0].Reference <= moves[0].High, "the bottleneck route now covers: move this case into the theory above");
+        Assert.InRange(moves[1].Reference, moves[1].Low, moves[1].High);
     }
 
     private static List<(double Reference, double Low, double High)> Moves(int seed, byte blankPercent, byte glitchPercent)
