@@ -16,6 +16,7 @@ public static class ReportTables
         "file", "param", "label", "samples", "turns", "bottleneck_phase", "bottleneck_phase_se", "a", "a_se", "b", "b_se",
         "half_window", "period_measured", "period_measured_se", "period_from_bottleneck", "period_from_field",
         "period_from_field_se", "revolutions", "noise_sd", "flags",
+        "rows_dropped_blank", "rows_dropped_low_quality", "rows_dropped_off_orbit", "rows_dropped_phase_jumps", "rows_dropped_total",
     ];
 
     /// <summary>Columns of field.csv.</summary>
@@ -40,6 +41,8 @@ public static class ReportTables
                 N(b?.Phase.Value), N(b?.Phase.StandardError), N(b?.A.Value), N(b?.A.StandardError), N(b?.B.Value), N(b?.B.StandardError),
                 N(b?.HalfWidth), N(p?.Measured.Value), N(p?.Measured.StandardError), N(p?.FromBottleneck.Value), N(p?.FromField.Value),
                 N(p?.FromField.StandardError), (p?.Revolutions ?? 0).ToString(Inv), N(r.Smoothing?.NoiseSd), string.Join(";", report.FlagsOf(r).Select(WireNames.Of)),
+                r.Dropped.Blank.ToString(Inv), r.Dropped.LowQuality.ToString(Inv), r.Dropped.OffOrbit.ToString(Inv),
+                r.Dropped.PhaseJumps.ToString(Inv), r.Dropped.Total.ToString(Inv),
             ]);
         }
 

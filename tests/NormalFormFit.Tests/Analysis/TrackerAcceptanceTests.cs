@@ -90,6 +90,30 @@ public class TrackerAcceptanceTests
     }
 
     [Fact]
+    public void TrackerExport_RunsCsvCarriesTheRowsDroppedByReason_AsTheJsonDoes()
+    {
+        using var dir = CliTestHost.NewFolder();
+        var manifest = TrackerScenario.Write(Path.Combine(dir.Path, "in"), Runs.Value);
+        var report = Path.Combine(dir.Path, "report");
+        var (code, json, err) = CliTestHost.Run("analyze", manifest, "--json", "-", "--out", report);
+        Assert.True(code == 0, err);
+        using var doc = JsonDocument.Parse(json);
+        var lines = File.ReadAllLines(Path.Combine(report, "runs.csv"));
+        var header = lines[0].Split(',');
+        var runs = doc.RootElement.GetProperty("runs").EnumerateArray().ToList();
+        Assert.Equal(runs.Count, lines.Length - 1);
+        for (var k = 0; k < runs.Count; k++)
+        {
+            var cells = lines[k + 1].Split(',');
+            var dropped = runs[k].GetProperty("rows_dropped");
+            foreach (var reason in new[] { "blank", "low_quality", "off_orbit", "phase_jumps", "total" })
+            {
+                Assert.Equal(dropped.GetProperty(reason).GetInt32().ToString(System.Globalization.CultureInfo.InvariantCulture), cells[Array.IndexOf(header, "rows_dropped_" + reason)]);
+            }
+        }
+    }
+
+    [Fact]
     public void TrackerExport_PutsVoltsAndSecondsInTheJsonAndTheSummary()
     {
         using var dir = CliTestHost.NewFolder();
