@@ -25,12 +25,19 @@ internal static class CompareCommand
         var json = new Option<string?>("--json") { Description = "also write the JSON report to FILE ('-' for standard output, which then carries only the JSON)" };
         var quiet = new Option<bool>("--quiet") { Description = "print nothing but errors" };
         var verbose = new Option<bool>("--verbose") { Description = "print details of internal errors" };
+        var reading = new ReadingOptions();
         var cmd = new Command("compare", "Check a reduced phase model against the runs: fitted parameters, onset, verdict, worst runs and phase regions")
         {
             manifest, model, start, fix, c0, c1, noPeriods, replicates, pilot, seed, json, outDir, quiet, verbose,
         };
+        reading.AddTo(cmd);
         cmd.SetAction(pr =>
         {
+            if (reading.Check(pr, stderr) is { } badColumn)
+            {
+                return badColumn;
+            }
+
             var parsed = ModelExpression.Parse(pr.GetValue(model)!);
             if (parsed.Value is null)
             {
@@ -38,28 +45,42 @@ internal static class CompareCommand
                 return ExitCodes.BadInput;
             }
 
-            if (!TryAssignments(pr.GetValue(start), "--start", stderr, out var starts) || !TryAssignments(pr.GetValue(fix), "--fix", stderr, out var fixeds))
+            var missing = ModelRequirements.Check(parsed.Value).Where(d => d.Severity == Severity.Error).ToList();
+            if (missing.Count > 0)
+            {
+                Report(stderr, missing, pr.GetValue(model)!);
+                return ExitCodes.BadInput;
+            }
+
+            if (!TryAssignments(pr.GetValue(start), "--start", stderr, out var starts) || !TryAssignments(pr.GetValue(fix), "--fix", stderr, out var fixeds)
+                || !TryMapValue(fixeds, "c0", pr.GetValue(c0), stderr, out var fixedOffset) || !TryMapValue(fixeds, "c1", pr.GetValue(c1), stderr, out var fixedScale))
             {
                 return ExitCodes.BadInput;
             }
+
+            // The map μ_model = c0 + c1·μ_lab has its own two names in --start and --fix.
+            var startOffset = starts.Remove("c0", out var so) ? so : CompareOptions.Default.StartOffset;
+            var startScale = starts.Remove("c1", out var ss) ? ss : CompareOptions.Default.StartScale;
 
             var options = new CompareOptions
             {
                 Start = starts,
                 Fixed = fixeds,
-                FixedOffset = pr.GetValue(c0),
-                FixedScale = pr.GetValue(c1),
+                FixedOffset = fixedOffset,
+                FixedScale = fixedScale,
+                StartOffset = startOffset,
+                StartScale = startScale,
                 UsePeriods = !pr.GetValue(noPeriods),
                 Replicates = pr.GetValue(replicates),
                 PilotReplicates = pr.GetValue(pilot),
                 Seed = pr.GetValue(seed),
             };
-            return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr, pr.GetValue(outDir));
+            return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr, pr.GetValue(outDir), reading.Bind(pr, AnalyzeOptions.Default));
         });
         return cmd;
     }
 
-    internal static int Execute(string manifestPath, ModelExpression expression, CompareOptions options, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr, string? outDir = null)
+    internal static int Execute(string manifestPath, ModelExpression expression, CompareOptions options, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr, string? outDir = null, AnalyzeOptions? analyzeOptions = null)
     {
         var outputs = PlannedOutput.OfReport(outDir, jsonPath);
 
@@ -69,7 +90,7 @@ internal static class CompareCommand
         }
 
         // One set of reading and analysis options for the runs and, through AnalysedRunSet, for the replicates.
-        var analyzeOptions = AnalyzeOptions.Default;
+        analyzeOptions ??= AnalyzeOptions.Default;
         var analysis = ManifestAnalyzer.Analyze(manifestPath, analyzeOptions);
         if (analysis.Value is null)
         {
@@ -82,7 +103,7 @@ internal static class CompareCommand
         if (result.Value is null)
         {
             Report(stderr, result.Diagnostics, null);
-            return result.Diagnostics.Any(d => d.Code is CompareFailures.TooFewPoints or CompareFailures.CannotFit) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+            return result.Diagnostics.Any(d => d.Code is CompareFailures.TooFewPoints or CompareFailures.CannotFit or CompareFailures.NoAnswer) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
         var c = result.Value;
@@ -130,6 +151,28 @@ internal static class CompareCommand
             }
         }
 
+        return true;
+    }
+
+    /// <summary>
+    /// The value at which the map's <paramref name="name"/> is held: from <c>--fix name=v</c> (taken out of
+    /// <paramref name="fixeds"/>) or from its own option; both given with different values is a usage error.
+    /// </summary>
+    private static bool TryMapValue(Dictionary<string, double> fixeds, string name, double? option, TextWriter stderr, out double? value)
+    {
+        value = option;
+        if (!fixeds.Remove(name, out var v))
+        {
+            return true;
+        }
+
+        if (option is { } o && o != v)
+        {
+            stderr.WriteLine(string.Create(CultureInfo.InvariantCulture, $"nffit: usage: --fix {name}={v:R} and --{name} {o:R} disagree; give one of them"));
+            return false;
+        }
+
+        value = v;
         return true;
     }
 

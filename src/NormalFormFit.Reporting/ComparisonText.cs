@@ -27,6 +27,12 @@ public static class ComparisonText
         w.WriteLine(string.Create(ic, $"onset  μ_lab = {c.Onset.Value:G6} ± {c.Onset.StandardError:G2}   95% [{c.OnsetCi95.Low:G6}, {c.OnsetCi95.High:G6}]"));
         var replicates = c.ReplicateStatistics.Count + c.FailedReplicates;
         w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {c.Statistic:G4}; {replicates} simulated from the fit: mean {c.Expected:G4}, largest {(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN):G4}; p = {c.PValue:G2})"));
+        w.WriteLine(c.Sense switch
+        {
+            TurningSense.Forward => "turning sense  the phase increases in every run as read; the model is fitted with positive speeds",
+            TurningSense.Backward => "turning sense  the phase decreases in every run as read; the model is fitted with negative speeds (the file's own convention)",
+            _ => "turning sense  mixed: the phase decreases in some runs as read and increases in others",
+        });
         w.WriteLine("worst runs (misfit over its mean in the simulated replicates; about 1 is a good fit):");
         foreach (var r in c.WorstRuns)
         {
@@ -43,6 +49,8 @@ public static class ComparisonText
         {
             w.WriteLine(d.ToString());
         }
+
+        w.WriteLine(TextReport.Caution);
 
         return w.ToString();
     }

@@ -1,4 +1,5 @@
 using NormalFormFit.Analysis;
+using NormalFormFit.Compare;
 using NormalFormFit.Ingest;
 using NormalFormFit.Onset;
 using NormalFormFit.Scaling;
@@ -27,6 +28,11 @@ public static class WireNames
         (RunFlag.LargeGaps, "large-gaps"),
         (RunFlag.NotAnEllipse, "not-an-ellipse"),
         (RunFlag.PeriodsOnly, "periods-only"));
+
+    private static readonly Names<TurningSense> Senses = new(
+        (TurningSense.Forward, "forward"),
+        (TurningSense.Backward, "backward"),
+        (TurningSense.Mixed, "mixed"));
 
     private static readonly Names<RecordingKind> Recordings = new(
         (RecordingKind.Phase, "phase"),
@@ -67,6 +73,9 @@ public static class WireNames
 
     /// <summary>What a run file recorded (<c>runs[].input_kind</c>).</summary>
     public static string Of(RecordingKind kind) => Recordings.Name(kind);
+
+    /// <summary>The name of a turning sense (compare's <c>turning_sense</c>).</summary>
+    public static string Of(TurningSense sense) => Senses.Name(sense);
 
     /// <summary>The kind of onset (<c>scaling.verdict</c>).</summary>
     public static string Of(OnsetKind kind) => Kinds.Name(kind);

@@ -30,6 +30,10 @@ internal sealed record ModelDto
 
     public bool Consistent { get; init; }
 
+    public required string TurningSense { get; init; }
+
+    public required string Caution { get; init; }
+
     public double Statistic { get; init; }
 
     public double PValue { get; init; }
@@ -61,6 +65,8 @@ internal sealed record ModelDto
         Consistent = c.Consistent,
         Statistic = c.Statistic,
         PValue = c.PValue,
+        TurningSense = WireNames.Of(c.Sense),
+        Caution = TextReport.Caution,
         ExpectedStatistic = c.Expected,
         Replicates = c.ReplicateStatistics.Count + c.FailedReplicates,
         FailedReplicates = c.FailedReplicates,

@@ -162,6 +162,11 @@ internal sealed class ExpressionParser
             return;
         }
 
+        if (c == '*' && pos > 0 && text[pos - 1] == '*')
+        {
+            throw Fail(pos - 1, "'**' is not an operator here: write a power with '^', e.g. sin(theta)^2");
+        }
+
         throw Fail(pos, $"expected a number, a name or '(' but found {Describe(pos)}");
     }
 

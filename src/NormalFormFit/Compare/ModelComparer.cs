@@ -15,6 +15,9 @@ public static class CompareFailures
 
     /// <summary>The model cannot be evaluated or fitted (non-finite values at the start, singular fit).</summary>
     public const string CannotFit = "compare-cannot-fit";
+
+    /// <summary>The fit ended on a non-finite parameter or onset: no answer to report, consistent or not.</summary>
+    public const string NoAnswer = "compare-no-answer";
 }
 
 /// <summary>
@@ -52,13 +55,14 @@ public static class ModelComparer
             return new Loaded<ModelComparison>(null, [.. problems.Select(p => new Diagnostic(Severity.Error, "bad-option", p))]);
         }
 
-        var problem = ComparisonProblem.Build(data.Runs.Runs, model, options, null);
-        var notes = new List<Diagnostic>();
-        if (!model.UsesMu)
+        var requirements = ModelRequirements.Check(model);
+        if (requirements.Any(d => d.Severity == Severity.Error))
         {
-            notes.Add(new Diagnostic(Severity.Warning, "no-mu",
-                "the expression does not contain mu: one field is fitted to every run, the map c0 + c1·μ is not used and there is no onset"));
+            return new Loaded<ModelComparison>(null, [.. requirements.Where(d => d.Severity == Severity.Error)]);
         }
+
+        var problem = ComparisonProblem.Build(data.Runs.Runs, model, options, null);
+        var notes = new List<Diagnostic>(requirements);
 
         if (problem.RunCount == 0)
         {
@@ -79,8 +83,33 @@ public static class ModelComparer
                 "the model gives no finite value at the starting parameters (e.g. log or sqrt of a negative number, or a division by zero): give starting values with --start"));
         }
 
-        var comparison = Finish(problem, model, options, data.Options.Run, fit, notes);
-        return new Loaded<ModelComparison>(comparison, comparison.Diagnostics);
+        // Turning sense: a fit whose model stops or turns the wrong way in some run is restarted once from the map
+        // reversed (c0, c1 → −c0, −c1), which puts the model's speeds on the other side of zero; the better fit that
+        // turns with every run is kept.
+        if (!TurnsWithEveryRun(problem, fit) && options.FixedOffset is null && options.FixedScale is null && model.UsesMu)
+        {
+            var reversedStart = problem.Expand(problem.StartVector());
+            reversedStart[problem.ParameterCount] = -reversedStart[problem.ParameterCount];
+            reversedStart[problem.ParameterCount + 1] = -reversedStart[problem.ParameterCount + 1];
+            var reversed = ComparisonProblem.Build(data.Runs.Runs, model, options, reversedStart);
+            var again = LevenbergMarquardt.Minimize(reversed.Evaluate, reversed.StartVector(), new LevenbergMarquardtOptions { MaxIterations = options.MaxIterations });
+            if (again.Exit != LevenbergMarquardtExit.InvalidStart && TurnsWithEveryRun(reversed, again))
+            {
+                notes.Add(new Diagnostic(Severity.Info, "fit-restarted", "the first fit left the model stopped or turning against the runs in some run; it was restarted from the map reversed (c0, c1 → −c0, −c1) and that fit, which turns with every run, is kept"));
+                problem = reversed;
+                fit = again;
+            }
+        }
+
+        notes.AddRange(SenseNotes(problem, fit));
+        var backwardRuns = problem.Runs.Count(r => r.Sign < 0);
+        var comparison = Finish(problem, model, options, data.Options.Run, fit, notes) with
+        {
+            Sense = backwardRuns == 0 ? TurningSense.Forward : backwardRuns == problem.RunCount ? TurningSense.Backward : TurningSense.Mixed,
+        };
+        return NoAnswer(comparison) is { } why
+            ? Loaded.Fail<ModelComparison>(new Diagnostic(Severity.Error, CompareFailures.NoAnswer, why))
+            : new Loaded<ModelComparison>(comparison, comparison.Diagnostics);
     }
 
     /// <summary>
@@ -114,6 +143,57 @@ public static class ModelComparer
         }
 
         return problems;
+    }
+
+    private static bool TurnsWithEveryRun(ComparisonProblem problem, LevenbergMarquardtResult fit)
+    {
+        var full = problem.Expand(fit.Parameters);
+        return fit.Parameters.All(double.IsFinite) && Enumerable.Range(0, problem.RunCount).All(i => problem.TurnsAt(full, i));
+    }
+
+    /// <summary>
+    /// The turning sense of the runs as read (the phase increasing or decreasing in the file's own convention) and what
+    /// it means for the fit: the model is fitted in the file's convention, so runs whose phase decreases need a model
+    /// whose speed is negative there, which a reversed map (c1 &lt; 0) can give without a word; say so.
+    /// </summary>
+    private static IEnumerable<Diagnostic> SenseNotes(ComparisonProblem problem, LevenbergMarquardtResult fit)
+    {
+        var backward = problem.Runs.Count(r => r.Sign < 0);
+        var scale = problem.Expand(fit.Parameters)[problem.ParameterCount + 1];
+        if (backward > 0 && backward < problem.RunCount)
+        {
+            yield return new Diagnostic(Severity.Warning, "mixed-sense", string.Create(CultureInfo.InvariantCulture,
+                $"the phase decreases in {backward} of {problem.RunCount} runs as read and increases in the others: one model cannot turn both ways at nearby μ unless its speed changes sign; check that every run was recorded with the same axes (e.g. --y-down for all image coordinates)"));
+        }
+        else if (backward == problem.RunCount)
+        {
+            yield return new Diagnostic(Severity.Info, "backward-sense",
+                "the phase decreases in every run as read (clockwise in the file's axes): the model is fitted in that convention, so its speed is negative in the runs" +
+                (scale < 0 ? "; the fitted map has c1 < 0 (the model's μ falls as the lab's rises), which is what a recording whose phase runs against the model's usually gives: for image coordinates pass --y-down, or write the model for the reversed phase" : string.Empty));
+        }
+    }
+
+    /// <summary>Why <paramref name="c"/> is no answer (a parameter, the map or the onset not finite), or null.</summary>
+    private static string? NoAnswer(ModelComparison c)
+    {
+        // A parameter the data do not determine is reported as unidentifiable (NaN with its own warning), not as an answer.
+        var unidentifiable = c.Diagnostics.Any(d => d.Code == "unidentifiable");
+        var bad = c.Parameters.Append(c.Offset).Append(c.Scale)
+            .Where(p => !(unidentifiable && double.IsNaN(p.Value)))
+            .FirstOrDefault(p => !double.IsFinite(p.Value) || !(double.IsFinite(p.StandardError) || p.Fixed));
+        if (bad is not null)
+        {
+            return string.Create(CultureInfo.InvariantCulture,
+                $"the fit ended with {bad.Name} = {bad.Value:G6} ± {bad.StandardError:G3}, not a finite estimate: the model cannot be checked against these runs; give starting values with --start, hold parameters with --fix, or simplify the model");
+        }
+
+        if (!double.IsFinite(c.Onset.Value))
+        {
+            return "the fitted model has no onset within reach of the runs (its minimum speed does not reach zero near their parameters): "
+                + "it cannot be checked as a model of this onset; check the sign conventions of mu and theta, or hold the map with --fix c1=…";
+        }
+
+        return null;
     }
 
     private static ModelComparison Finish(ComparisonProblem problem, ModelExpression model, CompareOptions options, RunOptions analysis, LevenbergMarquardtResult fit, List<Diagnostic> notes)

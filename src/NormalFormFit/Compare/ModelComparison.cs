@@ -90,4 +90,20 @@ public sealed record ModelComparison(
 
     /// <summary>Levenberg–Marquardt iterations taken.</summary>
     public int Iterations { get; init; }
+
+    /// <summary>How the runs' phase advanced as read; the model is fitted in that convention.</summary>
+    public TurningSense Sense { get; init; }
+}
+
+/// <summary>How the runs' phase advanced as read, in the file's own convention.</summary>
+public enum TurningSense
+{
+    /// <summary>The phase increases in every run.</summary>
+    Forward,
+
+    /// <summary>The phase decreases in every run.</summary>
+    Backward,
+
+    /// <summary>Some runs one way, some the other.</summary>
+    Mixed,
 }
