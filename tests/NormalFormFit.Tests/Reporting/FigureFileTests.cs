@@ -77,7 +77,7 @@ public class FigureFileTests
         }
 
         // The two route colours differ in lightness by at least a fifth of the scale (common practice, no source).
-        Assert.True(Math.Abs(Luma(FigurePalette.Field) - Luma(FigurePalette.Period)) > 50);
+        Assert.True(Math.Abs(Luma(FigurePalette.Bottleneck) - Luma(FigurePalette.Period)) > 50);
     }
 
     private static double DarkFraction(SKBitmap bitmap)
