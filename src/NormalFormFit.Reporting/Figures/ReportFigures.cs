@@ -99,8 +99,7 @@ public static partial class ReportFigures
         var plot = NewPlot("Phase velocity of every run", "phase θ (rad)", $"dθ/dt (rad per {TimeUnit(report)})");
 
         // Centre the view on the runs' bottleneck (circular mean of θ*), so the slow part sits mid-plot unbroken.
-        var stars = runs.Where(r => r.Bottleneck is not null).Select(r => r.Bottleneck!.Phase.Value).ToList();
-        var centre = stars.Count > 0 ? Math.Atan2(stars.Sum(Math.Sin), stars.Sum(Math.Cos)) : Math.PI;
+        var centre = BottleneckCentre(runs);
         for (var i = 0; i < runs.Count; i++)
         {
             var r = runs[i];
@@ -133,6 +132,13 @@ public static partial class ReportFigures
             "Each run's reconstructed phase velocity (line) with its pointwise 95% band from the block bootstrap over whole " +
             "revolutions (shaded), coloured from dark (lowest μ) to light (highest μ). Black dashes: the fitted normal form " +
             "a + b(θ−θ*)² over the window used for the fit. The phase axis is centred on the bottleneck.", plot);
+    }
+
+    /// <summary>The circular mean of the runs' bottleneck phases θ* (π when none has a bottleneck): the centre of the phase axes.</summary>
+    private static double BottleneckCentre(IReadOnlyList<RunResult> runs)
+    {
+        var stars = runs.Where(r => r.Bottleneck is not null).Select(r => r.Bottleneck!.Phase.Value).ToList();
+        return stars.Count > 0 ? Math.Atan2(stars.Sum(Math.Sin), stars.Sum(Math.Cos)) : Math.PI;
     }
 
     /// <summary>
@@ -243,7 +249,8 @@ public static partial class ReportFigures
                 : $"The {(bottleneckRoute ? "bottleneck" : "period")} route gave no onset, so none is drawn. ")
             + (drawnOther ? $"The onset by the {(bottleneckRoute ? "period" : "bottleneck")} route is drawn on the same line for comparison ({otherShape}, thinner bar). " : string.Empty)
             + "A bar narrower than its mark is hidden by it; the legend gives every interval. "
-            + (next ? "Black open circles: where the next runs would shrink this route's interval most (see Next measurements). " : string.Empty);
+            + (next ? "Black open circles: where the next runs would shrink this route's interval most (see Next measurements)." : string.Empty);
+        onsetText = onsetText.TrimEnd();
         return bottleneckRoute
             ? new Figure("trend-a", "Onset by the bottleneck route (a → 0)",
                 "The minimum speed a of each run (black dots, ± 1 standard error) against μ, the weighted trend with its 95% band. " + onsetText, plot)
@@ -351,7 +358,8 @@ public static partial class ReportFigures
         return new Figure("onsets", "The onsets close up",
             "Each onset reported, one row each, with its 95% interval as a capped bar on a μ axis just wide enough for them: " +
             (rec.IsAvailable ? "the recommended onset (black filled diamond), " : "no recommended onset (" + rec.Reason + "), ") +
-            "the bottleneck route (blue open diamond) and the period route (amber open square) where they gave one. " +
+            string.Join(" and ", new[] { (report.FromBottleneck.IsAvailable, "the bottleneck route (blue open diamond)"), (report.FromPeriod.IsAvailable, "the period route (amber open square)") }
+                .Where(x => x.IsAvailable).Select(x => x.Item2).DefaultIfEmpty("neither route")) + ". " +
             "An interval whose bound the data do not give runs to the edge without a cap.", plot)
         {
             Height = 300 + (40 * rows.Count),
@@ -422,7 +430,8 @@ public static partial class ReportFigures
             return null;
         }
 
-        var plot = NewPlot("Measured and predicted periods", ParamLabel(report), $"period T ({TimeUnits(report)})");
+        var predicted = runs.Any(r => double.IsFinite(r.Period!.FromField.Value) || double.IsFinite(r.Period!.FromBottleneck.Value));
+        var plot = NewPlot(predicted ? "Measured and predicted periods" : "Measured periods", ParamLabel(report), $"period T ({TimeUnits(report)})");
         var mu = runs.Select(r => r.Param).ToArray();
         var measured = runs.Select(r => r.Period!.Measured.Value).ToArray();
         var bars = plot.Add.ErrorBar(mu, measured, runs.Select(r => Finite(r.Period!.Measured.StandardError)).ToArray());
@@ -432,27 +441,34 @@ public static partial class ReportFigures
         m.LegendText = "measured (± 1 s.e.)";
 
         var field = runs.Where(r => double.IsFinite(r.Period!.FromField.Value)).ToArray();
-        var f = plot.Add.Scatter(field.Select(r => r.Param).ToArray(), field.Select(r => r.Period!.FromField.Value).ToArray(), FigurePalette.Period);
-        f.MarkerShape = MarkerShape.OpenTriangleUp;
-        f.MarkerSize = 11;
-        f.LineWidth = 1.5f;
-        f.LinePattern = LinePattern.Dotted;
-        f.LegendText = "∮dθ/(dθ/dt) from the field";
+        if (field.Length > 0)
+        {
+            var f = plot.Add.Scatter(field.Select(r => r.Param).ToArray(), field.Select(r => r.Period!.FromField.Value).ToArray(), FigurePalette.Period);
+            f.MarkerShape = MarkerShape.OpenTriangleUp;
+            f.MarkerSize = 11;
+            f.LineWidth = 1.5f;
+            f.LinePattern = LinePattern.Dotted;
+            f.LegendText = "∮dθ/(dθ/dt) from the field";
+        }
 
         var neck = runs.Where(r => double.IsFinite(r.Period!.FromBottleneck.Value)).ToArray();
-        var n = plot.Add.Scatter(neck.Select(r => r.Param).ToArray(), neck.Select(r => r.Period!.FromBottleneck.Value).ToArray(), FigurePalette.Bottleneck);
-        n.MarkerShape = MarkerShape.OpenSquare;
-        n.MarkerSize = 10;
-        n.LineWidth = 1.5f;
-        n.LinePattern = LinePattern.Dashed;
-        n.LegendText = "π/√(ab) from the bottleneck";
+        if (neck.Length > 0)
+        {
+            var n = plot.Add.Scatter(neck.Select(r => r.Param).ToArray(), neck.Select(r => r.Period!.FromBottleneck.Value).ToArray(), FigurePalette.Bottleneck);
+            n.MarkerShape = MarkerShape.OpenSquare;
+            n.MarkerSize = 10;
+            n.LineWidth = 1.5f;
+            n.LinePattern = LinePattern.Dashed;
+            n.LegendText = "π/√(ab) from the bottleneck";
+        }
 
         plot.ShowLegend(Alignment.UpperRight);
         plot.Axes.SetLimitsY(0, 1.08 * runs.SelectMany(r => new[] { r.Period!.Measured.Value, r.Period.FromField.Value, r.Period.FromBottleneck.Value }).Where(double.IsFinite).DefaultIfEmpty(1).Max());
-        return new Figure("periods", "Measured against predicted periods",
-            "Black: the measured mean period of each run. Amber triangles: ∮dθ/(dθ/dt) from the reconstructed field, which should match " +
-            "the measurement within its error (a check on the field). Blue squares: π/√(ab) from the bottleneck alone, which " +
-            "approaches the measurement as the run nears onset.", plot);
+        var caption = "Black: the measured mean period of each run (± 1 standard error)." +
+            (field.Length > 0 ? " Amber triangles: ∮dθ/(dθ/dt) from the reconstructed field, which should match the measurement within its error (a check on the field)." : string.Empty) +
+            (neck.Length > 0 ? " Blue squares: π/√(ab) from the bottleneck alone, which approaches the measurement as the run nears onset." : string.Empty) +
+            (field.Length == 0 && neck.Length == 0 ? " No run has a reconstructed field (event times carry periods only), so there are no predictions to compare." : string.Empty);
+        return new Figure("periods", field.Length + neck.Length > 0 ? "Measured against predicted periods" : "Measured periods", caption, plot);
     }
 
     /// <summary>Figure 6: binned residuals of every bottleneck fit across its window.</summary>
