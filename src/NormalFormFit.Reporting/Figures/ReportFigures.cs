@@ -630,7 +630,7 @@ public static partial class ReportFigures
         var thinned = runs.Any(r => r.OrbitView!.Samples > OrbitView.MaxDrawn);
         return new Figure("orbits", "Orbits of the positions",
             "One panel per run recorded as positions, in order of μ, each centred on its fitted ellipse and scaled by its semi-major " +
-            "axis (the centres and axes in the recording's units are in the text summary and report.json). Grey: the positions used" +
+            "axis (the centres and axes in the recording's units are in the text summary and report.json). Dark dots: the positions used" +
             (thinned ? $" (at most {OrbitView.MaxDrawn} drawn per run, evenly thinned)" : string.Empty) + "; blue: the fitted ellipse, whose " +
             "parametric angle is the phase" +
             (anyRejected ? "; red crosses: positions dropped as off the orbit (those beyond the panel drawn at its edge)" : string.Empty) +
