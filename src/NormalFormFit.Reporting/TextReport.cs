@@ -24,8 +24,10 @@ public static class TextReport
         sb.AppendLine(report.ParamName is null && report.TimeUnit is null
             ? "Onset (95% intervals)"
             : $"Onset (95% intervals; μ is {report.ParamName ?? "the control parameter"}{(report.ParamUnits is null ? string.Empty : " in " + report.ParamUnits)}, time in {report.TimeUnit ?? "the runs' units"})");
-        sb.AppendLine(Onset("  from bottleneck (a → 0):  ", report.FromBottleneck, u));
-        sb.AppendLine(Onset("  from period   (T⁻² → 0):  ", report.FromPeriod, u));
+        sb.AppendLine(Recommended(report.Recommended, u));
+        sb.AppendLine("  evidence, the two routes:");
+        sb.AppendLine(Onset("  bottleneck route (a → 0):  ", report.FromBottleneck, u));
+        sb.AppendLine(Onset("  period route (T⁻² → 0):    ", report.FromPeriod, u));
         RouteCaveats(sb, report);
         var ag = report.Agreement;
         sb.AppendLine(double.IsFinite(ag.Z)
@@ -48,7 +50,7 @@ public static class TextReport
         var tu = report.TimeUnit is { } unit ? $" ({unit})" : string.Empty;
         var perT = report.TimeUnit is { } unit2 ? $" (/{unit2})" : string.Empty;
         var pu = report.ParamUnits is { } unit3 ? $" ({unit3})" : string.Empty;
-        var header = new[] { "param" + pu, "θ*", "a" + perT, "±", "b" + perT, "±", "T meas" + tu, "±", "π/√(ab)", "∮dθ/θ̇", "revs", "κ rest" + perT, "D", "flags" };
+        var header = new[] { "param" + pu, "θ*", "a" + perT, "±", "b" + perT, "±", "T meas" + tu, "±", "π/√(ab)", "∮dθ/θ̇", "revolutions", "κ rest" + perT, "D", "flags" };
         var rows = new List<string[]> { header };
         foreach (var r in report.Runs)
         {
@@ -113,14 +115,15 @@ public static class TextReport
             }
         }
 
-        var diags = report.AllDiagnostics.Where(d => d.Severity != Severity.Info).ToList();
+        // Every diagnostic the page lists, in the page's order (most serious first), each on one line with its code.
+        var diags = report.AllDiagnostics.OrderByDescending(d => d.Severity).ToList();
         if (diags.Count > 0)
         {
             sb.AppendLine();
             sb.AppendLine("Diagnostics");
             foreach (var d in diags)
             {
-                sb.Append("  ").AppendLine(d.ToString());
+                sb.Append("  ").Append(d.ToString()).Append(" (").Append(d.Code).AppendLine(")");
             }
         }
 
@@ -168,6 +171,15 @@ public static class TextReport
         }
     }
 
+    private static string Recommended(RecommendedOnset r, string units)
+    {
+        const string label = "  recommended:               ";
+        var basis = WireNames.Of(r.Basis);
+        return !r.IsAvailable
+            ? $"{label}none ({basis}): {r.Reason}"
+            : string.Create(Inv, $"{label}μc = {ReportNumbers.WithError(r.Value, r.StandardError)}{units}  95% {ReportNumbers.Interval(r.Ci95, r.StandardError)}{units}  ({basis}: {r.Reason})");
+    }
+
     private static string Onset(string label, OnsetEstimate e, string units)
     {
         if (!e.IsAvailable)
@@ -177,15 +189,10 @@ public static class TextReport
         }
 
         return string.Create(Inv,
-            $"{label}μc = {ReportNumbers.WithError(e.Value, e.StandardError)}{units}  95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}  ({e.Runs} runs, {Law(e)})");
+            $"{label}μc = {ReportNumbers.WithError(e.Value, e.StandardError)}{units}  95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}{units}  ({e.Runs} runs, {Law(e)})");
     }
 
-    private static string Law(OnsetEstimate e) => e.Curve switch
-    {
-        Trend t => string.Create(Inv, $"trend degree {t.Degree}"),
-        { } c => "law " + c.Description,
-        null => "no trend",
-    };
+    private static string Law(OnsetEstimate e) => e.Curve?.Description ?? "no trend";
 
     // D within two standard errors of zero is shown as an upper bound: a negative estimate of a variance means "not resolved".
     private static string Diffusion(Estimate d) =>

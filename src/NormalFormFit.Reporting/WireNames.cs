@@ -49,6 +49,12 @@ public static class WireNames
         (OnsetRoute.Bottleneck, "bottleneck"),
         (OnsetRoute.Period, "period"));
 
+    private static readonly Names<RecommendationBasis> Bases = new(
+        (RecommendationBasis.Combined, "combined"),
+        (RecommendationBasis.Bottleneck, "bottleneck"),
+        (RecommendationBasis.Period, "period"),
+        (RecommendationBasis.None, "none"));
+
     private static readonly Names<RouteStatus> Statuses = new(
         (RouteStatus.Applicable, "applicable"),
         (RouteStatus.Unconfirmed, "unconfirmed"),
@@ -82,6 +88,9 @@ public static class WireNames
 
     /// <summary>The onset route (<c>next_measurements[].route</c>).</summary>
     public static string Of(OnsetRoute route) => Routes.Name(route);
+
+    /// <summary>Where the recommended onset comes from (<c>onset.recommended.basis</c>).</summary>
+    public static string Of(RecommendationBasis basis) => Bases.Name(basis);
 
     /// <summary>Whether a route applies (<c>onset.from_*.status</c>).</summary>
     public static string Of(RouteStatus status) => Statuses.Name(status);

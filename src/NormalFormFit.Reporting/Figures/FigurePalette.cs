@@ -13,11 +13,14 @@ public static class FigurePalette
     /// <summary>Measured values and reference lines.</summary>
     public static Color Ink { get; } = Color.FromHex("#1E1E24");
 
-    /// <summary>The field route (a → 0) and everything from the bottleneck fit.</summary>
-    public static Color Field { get; } = Color.FromHex("#1F5AA6");
+    /// <summary>The bottleneck route (a → 0) and everything from the bottleneck fit.</summary>
+    public static Color Bottleneck { get; } = Color.FromHex("#1F5AA6");
 
     /// <summary>The period route (T⁻² → 0) and everything from periods.</summary>
     public static Color Period { get; } = Color.FromHex("#E08A1E");
+
+    /// <summary>Rejected samples (positions dropped as off the orbit).</summary>
+    public static Color Rejected { get; } = Color.FromHex("#A3322A");
 
     /// <summary>Reference laws (slope −½, identity line).</summary>
     public static Color Reference { get; } = Color.FromHex("#7A7A80");

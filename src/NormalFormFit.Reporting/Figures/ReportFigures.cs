@@ -59,9 +59,11 @@ public static partial class ReportFigures
             Field(report),
             Trend(report, bottleneckRoute: true),
             Trend(report, bottleneckRoute: false),
+            Onsets(report),
             ScalingLaw(report),
             Periods(report),
             Residuals(report),
+            Orbits(report),
         };
         return [.. figures.OfType<Figure>()];
     }
@@ -97,8 +99,7 @@ public static partial class ReportFigures
         var plot = NewPlot("Phase velocity of every run", "phase θ (rad)", $"dθ/dt (rad per {TimeUnit(report)})");
 
         // Centre the view on the runs' bottleneck (circular mean of θ*), so the slow part sits mid-plot unbroken.
-        var stars = runs.Where(r => r.Bottleneck is not null).Select(r => r.Bottleneck!.Phase.Value).ToList();
-        var centre = stars.Count > 0 ? Math.Atan2(stars.Sum(Math.Sin), stars.Sum(Math.Cos)) : Math.PI;
+        var centre = BottleneckCentre(runs);
         for (var i = 0; i < runs.Count; i++)
         {
             var r = runs[i];
@@ -131,6 +132,13 @@ public static partial class ReportFigures
             "Each run's reconstructed phase velocity (line) with its pointwise 95% band from the block bootstrap over whole " +
             "revolutions (shaded), coloured from dark (lowest μ) to light (highest μ). Black dashes: the fitted normal form " +
             "a + b(θ−θ*)² over the window used for the fit. The phase axis is centred on the bottleneck.", plot);
+    }
+
+    /// <summary>The circular mean of the runs' bottleneck phases θ* (π when none has a bottleneck): the centre of the phase axes.</summary>
+    private static double BottleneckCentre(IReadOnlyList<RunResult> runs)
+    {
+        var stars = runs.Where(r => r.Bottleneck is not null).Select(r => r.Bottleneck!.Phase.Value).ToList();
+        return stars.Count > 0 ? Math.Atan2(stars.Sum(Math.Sin), stars.Sum(Math.Cos)) : Math.PI;
     }
 
     /// <summary>
@@ -169,7 +177,7 @@ public static partial class ReportFigures
             return null;
         }
 
-        var colour = bottleneckRoute ? FigurePalette.Field : FigurePalette.Period;
+        var colour = bottleneckRoute ? FigurePalette.Bottleneck : FigurePalette.Period;
         var plot = bottleneckRoute
             ? NewPlot("Minimum speed a against the control parameter", ParamLabel(report), $"a (rad per {TimeUnit(report)})")
             : NewPlot("Inverse squared period against the control parameter", ParamLabel(report), $"T⁻² (per {TimeUnit(report)}²)");
@@ -221,25 +229,141 @@ public static partial class ReportFigures
         marks.MarkerSize = 8;
         marks.LegendText = bottleneckRoute ? "a per run (± 1 s.e.)" : "1/T² per run (± 1 s.e.)";
 
-        // Both onsets, each as a marker on y = 0 with its 95% interval: the own route solid, the other for comparison.
+        // Both onsets on the zero line, where the trend crosses it, each with its 95% interval as a capped bar: open
+        // diamonds and squares in the routes' colours, so they cannot be read as runs (filled black circles).
         var yMax = pts.Max(p => p.Y + Finite(p.S));
         var yMin = Math.Min(0, pts.Min(p => p.Y - Finite(p.S)));
         var span = Math.Max(yMax - yMin, 1e-12);
-        OnsetMarker(plot, report.FromBottleneck, FigurePalette.Field, MarkerShape.FilledCircle, 0.04 * span, xMin - pad, xMax + pad, "onset from a → 0", report.ParamUnits);
-        OnsetMarker(plot, report.FromPeriod, FigurePalette.Period, MarkerShape.FilledSquare, -0.04 * span, xMin - pad, xMax + pad, "onset from T⁻² → 0", report.ParamUnits);
+        var own = bottleneckRoute ? report.FromBottleneck : report.FromPeriod;
+        var other = bottleneckRoute ? report.FromPeriod : report.FromBottleneck;
+        var drawnOwn = OnsetMarker(plot, own, bottleneckRoute, 0.035 * span, xMin - pad, xMax + pad, report.ParamUnits, own: true);
+        var drawnOther = OnsetMarker(plot, other, !bottleneckRoute, 0.02 * span, xMin - pad, xMax + pad, report.ParamUnits, own: false);
+        var next = NextRunMarks(plot, report, estimate, xMin - pad, xMax + pad);
 
         plot.Axes.SetLimitsX(xMin - pad, xMax + pad);
         plot.ShowLegend(Alignment.UpperLeft);
+        var ownShape = bottleneckRoute ? "blue open diamond" : "amber open square";
+        var otherShape = bottleneckRoute ? "amber open square" : "blue open diamond";
+        var onsetText = (drawnOwn
+                ? $"Where it crosses zero: the onset by the {(bottleneckRoute ? "bottleneck" : "period")} route ({ownShape} on the zero line, its 95% interval as a capped bar{(bottleneckRoute ? " by Fieller's theorem" : string.Empty)}). "
+                : $"The {(bottleneckRoute ? "bottleneck" : "period")} route gave no onset, so none is drawn. ")
+            + (drawnOther ? $"The onset by the {(bottleneckRoute ? "period" : "bottleneck")} route is drawn on the same line for comparison ({otherShape}, thinner bar). " : string.Empty)
+            + "A bar narrower than its mark is hidden by it; the legend gives every interval. "
+            + (next ? "Black open circles: where the next runs would shrink this route's interval most (see Next measurements)." : string.Empty);
+        onsetText = onsetText.TrimEnd();
         return bottleneckRoute
-            ? new Figure("trend-a", "Onset from the minimum speed (a → 0)",
-                "The minimum speed a of each run (± 1 standard error) against μ, the weighted trend with its 95% band, and where " +
-                "it crosses zero: the onset by the field route (blue circle, 95% interval by Fieller's theorem as a bar). The onset by " +
-                "the period route is drawn below it (amber square) for comparison.", plot)
-            : new Figure("trend-period", "Onset from the periods (T⁻² → 0)",
-                "1/T² of each run (± 1 standard error) against μ, the fitted law with its 95% band, and its zero: the onset by the " +
-                "period route (amber square with its 95% interval). The law is a weighted polynomial in μ, or T = α(μ−μc)^−½ + β " +
-                "(the bottleneck passage plus a constant excursion time) drawn as 1/T², whichever AICc prefers. The field-route onset " +
-                "(blue circle) is shown for comparison.", plot);
+            ? new Figure("trend-a", "Onset by the bottleneck route (a → 0)",
+                "The minimum speed a of each run (black dots, ± 1 standard error) against μ, the weighted trend with its 95% band. " + onsetText, plot)
+            : new Figure("trend-period", "Onset by the period route (T⁻² → 0)",
+                "1/T² of each run (black dots, ± 1 standard error) against μ, the fitted law with its 95% band. The law is a weighted " +
+                "polynomial in μ, or T = α(μ−μc)^−½ + β (the bottleneck passage plus a constant excursion time) drawn as 1/T², " +
+                "whichever AICc prefers. " + onsetText, plot);
+    }
+
+    /// <summary>
+    /// Marks the suggested next runs of <paramref name="estimate"/>'s route at the trend's value there; true when any
+    /// was drawn.
+    /// </summary>
+    private static bool NextRunMarks(Plot plot, AnalysisReport report, OnsetEstimate estimate, double xMin, double xMax)
+    {
+        if (estimate.Curve is not { } curve)
+        {
+            return false;
+        }
+
+        var drawn = false;
+        foreach (var m in report.NextMeasurements.Where(m => m.Route == estimate.Route && m.Param >= xMin && m.Param <= xMax))
+        {
+            var y = curve.Evaluate(m.Param);
+            if (!double.IsFinite(y))
+            {
+                continue;
+            }
+
+            var mark = plot.Add.Marker(m.Param, y, MarkerShape.OpenCircle, 18, FigurePalette.Ink);
+            mark.LineWidth = 2;
+            mark.LegendText = $"next runs: {m.Runs} at {ParamValue(report, m.Param)}";
+            drawn = true;
+        }
+
+        return drawn;
+    }
+
+    /// <summary>
+    /// The onsets close up: the recommended onset and each route's, one row each, with their 95% intervals on a μ axis
+    /// just wide enough for them, so that bars hidden under the marks of the trend figures can be read. Null without
+    /// any onset.
+    /// </summary>
+    internal static Figure? Onsets(AnalysisReport report)
+    {
+        var rec = report.Recommended;
+        var rows = new List<(string Label, double Value, double Se, Interval Ci, Color Colour, MarkerShape Shape)>();
+        if (rec.IsAvailable)
+        {
+            rows.Add(($"recommended ({WireNames.Of(rec.Basis)})", rec.Value, rec.StandardError, rec.Ci95, FigurePalette.Ink, MarkerShape.FilledDiamond));
+        }
+
+        foreach (var (e, bottleneck) in new[] { (report.FromBottleneck, true), (report.FromPeriod, false) })
+        {
+            if (e.IsAvailable)
+            {
+                rows.Add((bottleneck ? "bottleneck route" : "period route", e.Value, e.StandardError, e.Ci95,
+                    bottleneck ? FigurePalette.Bottleneck : FigurePalette.Period, bottleneck ? MarkerShape.OpenDiamond : MarkerShape.OpenSquare));
+            }
+        }
+
+        if (rows.Count == 0)
+        {
+            return null;
+        }
+
+        // x range: every finite bound and value, padded by a tenth; an unbounded side runs to the edge.
+        var finite = rows.SelectMany(r => new[] { r.Value, r.Ci.Low, r.Ci.High }).Where(double.IsFinite).ToList();
+        var lo = finite.Min();
+        var hi = finite.Max();
+        var width = hi - lo > 0 ? hi - lo : Math.Max(Math.Abs(lo) * 1e-6, 1e-12);
+        var xMin = lo - (0.12 * width);
+        var xMax = hi + (0.12 * width);
+        var plot = NewPlot("The onsets close up", ParamLabel(report), string.Empty);
+        var ticks = new ScottPlot.TickGenerators.NumericManual();
+        for (var i = 0; i < rows.Count; i++)
+        {
+            var (label, value, se, ci, colour, shape) = rows[i];
+            var y = rows.Count - i;
+            var l = double.IsFinite(ci.Low) ? ci.Low : xMin;
+            var h = double.IsFinite(ci.High) ? ci.High : xMax;
+            var bar = plot.Add.Line(l, y, h, y);
+            bar.Color = colour;
+            bar.LineWidth = 4;
+            foreach (var (x, bounded) in new[] { (l, double.IsFinite(ci.Low)), (h, double.IsFinite(ci.High)) })
+            {
+                if (bounded)
+                {
+                    var c = plot.Add.Line(x, y - 0.15, x, y + 0.15);
+                    c.Color = colour;
+                    c.LineWidth = 2.5f;
+                }
+            }
+
+            var mark = plot.Add.Marker(value, y, shape, 16, colour);
+            mark.LineWidth = 2.5f;
+            mark.LegendText = $"{label}: {ReportNumbers.WithError(value, se)}{Unit(report.ParamUnits)}, 95% {ReportNumbers.Interval(ci, se)}{Unit(report.ParamUnits)}";
+            ticks.AddMajor(y, label);
+        }
+
+        plot.Axes.Left.TickGenerator = ticks;
+        plot.Axes.SetLimits(xMin, xMax, 0.4, rows.Count + 0.6 + (0.45 * rows.Count));
+        plot.ShowLegend(Alignment.UpperCenter);
+        plot.Grid.YAxisStyle.MajorLineStyle.Width = 0;
+        return new Figure("onsets", "The onsets close up",
+            "Each onset reported, one row each, with its 95% interval as a capped bar on a μ axis just wide enough for them: " +
+            (rec.IsAvailable ? "the recommended onset (black filled diamond), " : "no recommended onset (" + rec.Reason + "), ") +
+            string.Join(" and ", new[] { (report.FromBottleneck.IsAvailable, "the bottleneck route (blue open diamond)"), (report.FromPeriod.IsAvailable, "the period route (amber open square)") }
+                .Where(x => x.IsAvailable).Select(x => x.Item2).DefaultIfEmpty("neither route")) + ". " +
+            "An interval whose bound the data do not give runs to the edge without a cap.", plot)
+        {
+            Height = 300 + (40 * rows.Count),
+        };
     }
 
     /// <summary>Figure 4: log T against log(μ − μc) with the fitted law and the reference slope −½.</summary>
@@ -290,7 +414,9 @@ public static partial class ReportFigures
         LogAxis(plot.Axes.Left, Math.Min(ly.Min(), ly.Max()) - 0.1, ly.Max() + 0.1);
         plot.ShowLegend(Alignment.UpperRight);
         return new Figure("scaling", "Scaling law of the period",
-            string.Create(Inv, $"Measured periods against the distance to the onset μc = {G(s.Onset.Value, 6)} of this fit, on logarithmic axes. ") +
+            $"Measured periods (black dots, ± 1 standard error) against the distance |μ − μc| on logarithmic axes. Here μc = {ReportNumbers.WithError(s.Onset.Value, s.Onset.StandardError)}{Unit(report.ParamUnits)} " +
+            "is fitted together with the exponent β by the scaling law itself; it only places the runs on this figure and is not one " +
+            "of the reported onsets (the Answer gives the onset to act on). " +
             "Amber: the fitted law (with its correction terms when the information criterion kept them). Grey dots: the reference " +
             "slope −½ of a saddle-node on the circle, placed at its best height. " + report.Verdict.Evidence + ".", plot);
     }
@@ -304,7 +430,8 @@ public static partial class ReportFigures
             return null;
         }
 
-        var plot = NewPlot("Measured and predicted periods", ParamLabel(report), $"period T ({TimeUnits(report)})");
+        var predicted = runs.Any(r => double.IsFinite(r.Period!.FromField.Value) || double.IsFinite(r.Period!.FromBottleneck.Value));
+        var plot = NewPlot(predicted ? "Measured and predicted periods" : "Measured periods", ParamLabel(report), $"period T ({TimeUnits(report)})");
         var mu = runs.Select(r => r.Param).ToArray();
         var measured = runs.Select(r => r.Period!.Measured.Value).ToArray();
         var bars = plot.Add.ErrorBar(mu, measured, runs.Select(r => Finite(r.Period!.Measured.StandardError)).ToArray());
@@ -314,27 +441,34 @@ public static partial class ReportFigures
         m.LegendText = "measured (± 1 s.e.)";
 
         var field = runs.Where(r => double.IsFinite(r.Period!.FromField.Value)).ToArray();
-        var f = plot.Add.Scatter(field.Select(r => r.Param).ToArray(), field.Select(r => r.Period!.FromField.Value).ToArray(), FigurePalette.Period);
-        f.MarkerShape = MarkerShape.OpenTriangleUp;
-        f.MarkerSize = 11;
-        f.LineWidth = 1.5f;
-        f.LinePattern = LinePattern.Dotted;
-        f.LegendText = "∮dθ/(dθ/dt) from the field";
+        if (field.Length > 0)
+        {
+            var f = plot.Add.Scatter(field.Select(r => r.Param).ToArray(), field.Select(r => r.Period!.FromField.Value).ToArray(), FigurePalette.Period);
+            f.MarkerShape = MarkerShape.OpenTriangleUp;
+            f.MarkerSize = 11;
+            f.LineWidth = 1.5f;
+            f.LinePattern = LinePattern.Dotted;
+            f.LegendText = "∮dθ/(dθ/dt) from the field";
+        }
 
         var neck = runs.Where(r => double.IsFinite(r.Period!.FromBottleneck.Value)).ToArray();
-        var n = plot.Add.Scatter(neck.Select(r => r.Param).ToArray(), neck.Select(r => r.Period!.FromBottleneck.Value).ToArray(), FigurePalette.Field);
-        n.MarkerShape = MarkerShape.OpenSquare;
-        n.MarkerSize = 10;
-        n.LineWidth = 1.5f;
-        n.LinePattern = LinePattern.Dashed;
-        n.LegendText = "π/√(ab) from the bottleneck";
+        if (neck.Length > 0)
+        {
+            var n = plot.Add.Scatter(neck.Select(r => r.Param).ToArray(), neck.Select(r => r.Period!.FromBottleneck.Value).ToArray(), FigurePalette.Bottleneck);
+            n.MarkerShape = MarkerShape.OpenSquare;
+            n.MarkerSize = 10;
+            n.LineWidth = 1.5f;
+            n.LinePattern = LinePattern.Dashed;
+            n.LegendText = "π/√(ab) from the bottleneck";
+        }
 
         plot.ShowLegend(Alignment.UpperRight);
         plot.Axes.SetLimitsY(0, 1.08 * runs.SelectMany(r => new[] { r.Period!.Measured.Value, r.Period.FromField.Value, r.Period.FromBottleneck.Value }).Where(double.IsFinite).DefaultIfEmpty(1).Max());
-        return new Figure("periods", "Measured against predicted periods",
-            "Black: the measured mean period of each run. Amber triangles: ∮dθ/(dθ/dt) from the reconstructed field, which should match " +
-            "the measurement within its error (a check on the field). Blue squares: π/√(ab) from the bottleneck alone, which " +
-            "approaches the measurement as the run nears onset.", plot);
+        var caption = "Black: the measured mean period of each run (± 1 standard error)." +
+            (field.Length > 0 ? " Amber triangles: ∮dθ/(dθ/dt) from the reconstructed field, which should match the measurement within its error (a check on the field)." : string.Empty) +
+            (neck.Length > 0 ? " Blue squares: π/√(ab) from the bottleneck alone, which approaches the measurement as the run nears onset." : string.Empty) +
+            (field.Length == 0 && neck.Length == 0 ? " No run has a reconstructed field (event times carry periods only), so there are no predictions to compare." : string.Empty);
+        return new Figure("periods", field.Length + neck.Length > 0 ? "Measured against predicted periods" : "Measured periods", caption, plot);
     }
 
     /// <summary>Figure 6: binned residuals of every bottleneck fit across its window.</summary>
@@ -372,20 +506,139 @@ public static partial class ReportFigures
             "too wide for a parabola.", plot);
     }
 
-    private static void OnsetMarker(Plot plot, OnsetEstimate e, Color colour, MarkerShape shape, double y, double xMin, double xMax, string label, string? unit = null)
+    /// <summary>
+    /// An onset on the zero line: an open mark at μc and its 95% interval as a bar with end caps (a bound the data do
+    /// not give runs to the plot's edge, uncapped). False when the route gave no onset.
+    /// </summary>
+    private static bool OnsetMarker(Plot plot, OnsetEstimate e, bool bottleneckRoute, double cap, double xMin, double xMax, string? unit, bool own)
     {
         if (!e.IsAvailable)
         {
-            return;
+            return false;
         }
 
-        var lo = double.IsFinite(e.Ci95.Low) ? e.Ci95.Low : xMin;
-        var hi = double.IsFinite(e.Ci95.High) ? e.Ci95.High : xMax;
-        var bar = plot.Add.Line(lo, y, hi, y);
+        var colour = bottleneckRoute ? FigurePalette.Bottleneck : FigurePalette.Period;
+        var lo = double.IsFinite(e.Ci95.Low) ? Math.Max(e.Ci95.Low, xMin) : xMin;
+        var hi = double.IsFinite(e.Ci95.High) ? Math.Min(e.Ci95.High, xMax) : xMax;
+        var bar = plot.Add.Line(lo, 0, hi, 0);
         bar.Color = colour;
-        bar.LineWidth = 4;
-        var dot = plot.Add.Marker(e.Value, y, shape, 12, colour);
+        bar.LineWidth = own ? 5 : 3;
+        foreach (var (x, bounded) in new[] { (lo, double.IsFinite(e.Ci95.Low) && e.Ci95.Low >= xMin), (hi, double.IsFinite(e.Ci95.High) && e.Ci95.High <= xMax) })
+        {
+            if (bounded)
+            {
+                var c = plot.Add.Line(x, -cap, x, cap);
+                c.Color = colour;
+                c.LineWidth = own ? 2.5f : 1.5f;
+            }
+        }
+
+        var dot = plot.Add.Marker(e.Value, 0, bottleneckRoute ? MarkerShape.OpenDiamond : MarkerShape.OpenSquare, own ? 16 : 12, colour);
+        dot.LineWidth = own ? 2.5f : 1.8f;
+        var label = bottleneckRoute ? "onset, bottleneck route" : "onset, period route";
         dot.LegendText = $"{label}: {ReportNumbers.WithError(e.Value, e.StandardError)}{Unit(unit)}, 95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}{Unit(unit)}";
+        return true;
+    }
+
+    /// <summary>
+    /// The orbits of runs recorded as positions, one small panel per run: the kept samples (at most
+    /// <see cref="OrbitView.MaxDrawn"/>), the fitted ellipse, the positions dropped as off the orbit and the bottleneck.
+    /// Each panel is centred on its ellipse and scaled by its semi-major axis, so the panels share one size; the
+    /// ellipses' centres and axes in the recording's units are in the text summary. Null without such runs.
+    /// </summary>
+    internal static Figure? Orbits(AnalysisReport report)
+    {
+        var runs = Ordered(report).Where(r => r.OrbitView is not null).ToList();
+        if (runs.Count == 0)
+        {
+            return null;
+        }
+
+        var cols = Math.Min(4, runs.Count);
+        var rows = (runs.Count + cols - 1) / cols;
+        const double cell = 2.7;
+        var plot = NewPlot("Orbits of the positions", string.Empty, string.Empty);
+        var anyRejected = false;
+        var anyBottleneck = false;
+        for (var i = 0; i < runs.Count; i++)
+        {
+            var v = runs[i].OrbitView!;
+            var e = v.Ellipse;
+            var ox = (i % cols) * cell;
+            var oy = -(i / cols) * cell;
+            var s = 1 / e.SemiMajor;
+            var flip = v.YDown ? -1.0 : 1.0;
+            double Px(double x) => ox + ((x - e.CentreX) * s);
+            double Py(double y) => oy + (flip * (y - e.CentreY) * s);
+
+            var ring = Grid(0, 2 * Math.PI, 181).Select(v.EllipsePoint).ToArray();
+            var fit = plot.Add.ScatterLine(ring.Select(p => Px(p.X)).ToArray(), ring.Select(p => Py(p.Y)).ToArray(), FigurePalette.Bottleneck);
+            fit.LineWidth = 1.5f;
+            if (i == 0)
+            {
+                fit.LegendText = "fitted orbit (ellipse)";
+            }
+
+            var samples = plot.Add.ScatterPoints(v.X.Select(Px).ToArray(), v.Y.Select(Py).ToArray(), FigurePalette.Ink.WithAlpha(0.6));
+            samples.MarkerSize = 3;
+            if (i == 0)
+            {
+                samples.LegendText = "positions kept";
+            }
+
+            if (v.RejectedX.Length > 0)
+            {
+                // A position far off the orbit is drawn at its panel's edge, in its direction, so it stays in its own panel.
+                var rx = v.RejectedX.Select(Px).Select(x => Math.Clamp(x, ox - 1.3, ox + 1.3)).ToArray();
+                var ry = v.RejectedY.Select(Py).Select(y => Math.Clamp(y, oy - 1.15, oy + 1.3)).ToArray();
+                var bad = plot.Add.ScatterPoints(rx, ry, FigurePalette.Rejected);
+                bad.MarkerShape = MarkerShape.Eks;
+                bad.MarkerSize = 8;
+                bad.MarkerLineWidth = 1.8f;
+                if (!anyRejected)
+                {
+                    bad.LegendText = "positions dropped as off the orbit";
+                }
+
+                anyRejected = true;
+            }
+
+            if (double.IsFinite(v.BottleneckX))
+            {
+                var neck = plot.Add.Marker(Px(v.BottleneckX), Py(v.BottleneckY), MarkerShape.FilledDiamond, 13, FigurePalette.Period);
+                if (!anyBottleneck)
+                {
+                    neck.LegendText = "bottleneck θ*";
+                }
+
+                anyBottleneck = true;
+            }
+
+            var label = plot.Add.Text($"{ParamValue(report, runs[i].Param)}: {v.Samples} kept{(v.Rejected > 0 ? $", {v.Rejected} dropped" : string.Empty)}", ox, oy - 1.22);
+            label.LabelFontSize = 12;
+            label.LabelAlignment = Alignment.UpperCenter;
+            label.LabelFontColor = FigurePalette.Ink;
+        }
+
+        plot.HideGrid();
+        plot.Axes.Frameless();
+        plot.Axes.SquareUnits();
+        plot.Axes.SetLimits(-1.45, ((cols - 1) * cell) + 1.45, -((rows - 1) * cell) - 1.6, 2.4);
+        plot.ShowLegend(Alignment.UpperRight);
+        var width = DefaultWidth;
+        var height = Math.Min(1400, 140 + (int)(rows * (width - 40) / (double)cols));
+        var thinned = runs.Any(r => r.OrbitView!.Samples > OrbitView.MaxDrawn);
+        return new Figure("orbits", "Orbits of the positions",
+            "One panel per run recorded as positions, in order of μ, each centred on its fitted ellipse and scaled by its semi-major " +
+            "axis (the centres and axes in the recording's units are in the text summary and report.json). Dark dots: the positions used" +
+            (thinned ? $" (at most {OrbitView.MaxDrawn} drawn per run, evenly thinned)" : string.Empty) + "; blue: the fitted ellipse, whose " +
+            "parametric angle is the phase" +
+            (anyRejected ? "; red crosses: positions dropped as off the orbit (those beyond the panel drawn at its edge)" : string.Empty) +
+            (anyBottleneck ? "; amber diamond: the bottleneck θ*, where the marker lingers" : string.Empty) +
+            (runs.Any(r => r.OrbitView!.YDown) ? ". Image coordinates (y down) are drawn as the camera saw them." : "."), plot)
+        {
+            Height = height,
+        };
     }
 
     private static Plot NewPlot(string title, string x, string y)
@@ -400,8 +653,35 @@ public static partial class ReportFigures
         plot.Axes.Bottom.TickLabelStyle.FontSize = 13;
         plot.Axes.Left.TickLabelStyle.FontSize = 13;
         plot.Grid.MajorLineColor = Color.FromHex("#E4E4E8");
+        plot.Axes.Bottom.TickGenerator = new ScottPlot.TickGenerators.NumericAutomatic { LabelFormatter = PlainTick };
+        plot.Axes.Left.TickGenerator = new ScottPlot.TickGenerators.NumericAutomatic { LabelFormatter = PlainTick };
         plot.Legend.FontSize = 12;
         return plot;
+    }
+
+    /// <summary>
+    /// A tick label in plain notation (0.00009, not 9E-05): the value rounded to 12 significant digits to drop the
+    /// tick generator's floating-point residue, then written as a decimal; scientific notation only beyond 10¹⁵.
+    /// </summary>
+    internal static string PlainTick(double v)
+    {
+        if (!double.IsFinite(v))
+        {
+            return string.Empty;
+        }
+
+        if (v == 0 || Math.Abs(v) < 1e-24)
+        {
+            return "0";
+        }
+
+        if (Math.Abs(v) >= 1e15)
+        {
+            return v.ToString("G6", Inv);
+        }
+
+        var rounded = decimal.Parse(v.ToString("G12", Inv), NumberStyles.Float, Inv);
+        return rounded.ToString("0.############################", Inv).Replace("-", "−", StringComparison.Ordinal);
     }
 
     /// <summary>Ticks of a log₁₀ axis at 1, 2, 5 × 10ᵏ (labelled) and the other integers × 10ᵏ (minor).</summary>

@@ -87,10 +87,11 @@ public static partial class HtmlReport
             Model(sb, model, figures.Select(f => f.Figure.Name).ToList(), report.ParamUnits is { Length: > 0 } pu ? " " + E(pu) : string.Empty);
         }
 
+        NextMeasurements(sb, report, figures.Select(f => f.Figure.Name).ToList());
         Figures(sb, figures);
         Runs(sb, report);
         Diagnostics(sb, report);
-        Methods(sb);
+        Methods(sb, report);
         sb.Append("<section id=\"cautions\"><h2>Cautions</h2><p class=\"caution\">").Append(E(TextReport.Caution)).Append("</p>");
         sb.Append("<p>The intervals are statistical: they assume the runs are steady, the control parameter is set as recorded, ")
           .Append("and the onset is approached along the same path as the runs. They do not cover drifts, hysteresis or effects ")
@@ -108,10 +109,12 @@ public static partial class HtmlReport
     private static void Answer(StringBuilder sb, AnalysisReport report)
     {
         var u = report.ParamUnits is { Length: > 0 } units ? " " + E(units) : string.Empty;
-        sb.Append("<section id=\"answer\"><h2>Answer</h2>\n<table class=\"answer\">\n<thead><tr><th>onset μc</th><th>value ± s.e.</th>")
+        sb.Append("<section id=\"answer\"><h2>Answer</h2>\n");
+        Recommended(sb, report.Recommended, u);
+        sb.Append("<h3>Evidence: the two routes</h3>\n<table class=\"answer\">\n<thead><tr><th>onset μc</th><th>value ± s.e.</th>")
           .Append("<th>95% interval</th><th>runs</th><th>trend</th></tr></thead>\n<tbody>\n");
-        OnsetRow(sb, "from the bottleneck (a → 0)", report.FromBottleneck, u, "route-field");
-        OnsetRow(sb, "from the periods (T⁻² → 0)", report.FromPeriod, u, "route-period");
+        OnsetRow(sb, "bottleneck route (a → 0)", report.FromBottleneck, u, "route-bottleneck");
+        OnsetRow(sb, "period route (T⁻² → 0)", report.FromPeriod, u, "route-period");
         sb.Append("</tbody></table>\n");
 
         var ag = report.Agreement;
@@ -220,6 +223,20 @@ public static partial class HtmlReport
     private static string Residual(double r) => !double.IsFinite(r) ? "–" :
         string.Create(Inv, $"model too {(r > 0 ? "fast" : "slow")} by {Math.Abs(r):F2}");
 
+    private static void Recommended(StringBuilder sb, RecommendedOnset r, string units)
+    {
+        sb.Append("<div class=\"recommended\" id=\"recommended\"><p class=\"label\">Recommended onset μc</p>");
+        if (!r.IsAvailable)
+        {
+            sb.Append("<p class=\"value\">none</p><p class=\"basis\">").Append(E(Capitalise(r.Reason))).Append(".</p></div>\n");
+            return;
+        }
+
+        sb.Append("<p class=\"value\">").Append(WithError(r.Value, r.StandardError)).Append(units).Append("</p>")
+          .Append("<p class=\"interval\">95% interval ").Append(Interval(r.Ci95, r.StandardError)).Append(units).Append("</p>")
+          .Append("<p class=\"basis\"><strong>Basis: ").Append(E(WireNames.Of(r.Basis))).Append("</strong>. ").Append(E(Capitalise(r.Reason))).Append(".</p></div>\n");
+    }
+
     private static void OnsetRow(StringBuilder sb, string label, OnsetEstimate e, string units, string css)
     {
         sb.Append("<tr class=\"").Append(css).Append("\"><th scope=\"row\">").Append(E(label)).Append("</th>");
@@ -233,12 +250,47 @@ public static partial class HtmlReport
         sb.Append("<td class=\"num\">").Append(WithError(e.Value, e.StandardError)).Append(units).Append("</td>")
           .Append("<td class=\"num\">").Append(Interval(e.Ci95, e.StandardError)).Append(units).Append("</td>")
           .Append("<td class=\"num\">").Append(e.Runs.ToString(Inv)).Append("</td>")
-          .Append("<td>").Append(e.Curve switch
-          {
-              Trend t => t.Degree == 1 ? "straight line" : "degree " + t.Degree.ToString(Inv),
-              { } c => E(c.Description),
-              null => "–",
-          }).Append("</td></tr>\n");
+          .Append("<td>").Append(e.Curve is { } c ? E(c.Description) : "–").Append("</td></tr>\n");
+    }
+
+    private static readonly string[] TrendFigures = ["trend-a", "trend-period"];
+
+    /// <summary>The suggested next runs as a table, with the caution beside it: they lie closer to the onset than the runs so far.</summary>
+    private static void NextMeasurements(StringBuilder sb, AnalysisReport report, IReadOnlyList<string> figureNames)
+    {
+        if (report.NextMeasurements.Count == 0)
+        {
+            return;
+        }
+
+        var pu = report.ParamUnits is { Length: > 0 } p ? " " + E(p) : string.Empty;
+        var tu = report.TimeUnit is { Length: > 0 } t ? E(t) : "time units";
+        sb.Append("<section id=\"next\"><h2>Next measurements</h2>\n<p>Where new runs would shrink each route's 95% onset interval most ")
+          .Append("(c-optimal design for the root of the route's trend; Atkinson, Donev &amp; Tobias 2007, §10).</p>\n")
+          .Append("<div class=\"next-wrap\"><table class=\"runs\">\n<thead><tr><th>route</th><th>new runs</th><th>at μ</th><th>period about (")
+          .Append(tu).Append(")</th><th>interval now</th><th>expected after</th></tr></thead>\n<tbody>\n");
+        foreach (var m in report.NextMeasurements)
+        {
+            var now = Interval(m.CurrentCi95, m.CurrentCi95.Width / 3.92);
+            var then = Interval(m.ExpectedCi95, m.ExpectedCi95.Width / 3.92);
+            sb.Append("<tr><td>").Append(E(WireNames.Of(m.Route))).Append(" route</td><td class=\"num\">").Append(m.Runs.ToString(Inv))
+              .Append("</td><td class=\"num\">").Append(G(m.Param)).Append(pu)
+              .Append("</td><td class=\"num\">").Append(double.IsFinite(m.ExpectedPeriod) ? G(m.ExpectedPeriod, 3) : "–")
+              .Append("</td><td class=\"num\">").Append(now).Append(pu)
+              .Append("</td><td class=\"num\">").Append(then).Append(pu).Append("</td></tr>\n");
+        }
+
+        sb.Append("</tbody></table>\n<p class=\"caution\">These runs lie close to the onset, where the system turns slowly and may stall or ")
+          .Append("start unexpectedly. ").Append(E(TextReport.Caution)).Append("</p></div>\n");
+        var marked = TrendFigures.Where(figureNames.Contains).ToList();
+        if (marked.Count > 0)
+        {
+            sb.Append("<p class=\"note\">The suggested values are marked (black open circles) on ")
+              .Append(string.Join(" and ", marked.Select(n => $"<a href=\"#fig-{n}\">{(n == "trend-a" ? "the bottleneck route's trend" : "the period route's trend")}</a>")))
+              .Append(". The expected intervals assume the new runs follow the fitted trend with errors like their neighbours'.</p>\n");
+        }
+
+        sb.Append("</section>\n");
     }
 
     private static void Figures(StringBuilder sb, IReadOnlyList<(Figure Figure, string Svg)> figures)
@@ -257,8 +309,11 @@ public static partial class HtmlReport
 
     private static void Runs(StringBuilder sb, AnalysisReport report)
     {
+        var tu = report.TimeUnit is { Length: > 0 } t ? E(t) : "time unit";
         sb.Append("<section id=\"runs\"><h2>Runs</h2>\n<div class=\"scroll\"><table class=\"runs\">\n<thead><tr>")
-          .Append("<th>run</th><th>μ</th><th>θ* (rad)</th><th>a</th><th>b</th><th>T measured</th><th>π/√(ab)</th><th>∮dθ/θ̇</th><th>revs</th><th>flags</th>")
+          .Append("<th>run</th><th>μ").Append(report.ParamUnits is { Length: > 0 } pu ? " (" + E(pu) + ")" : string.Empty)
+          .Append("</th><th>θ* (rad)</th><th>a (rad/").Append(tu).Append(")</th><th>b (1/(rad·").Append(tu).Append("))</th><th>T measured (").Append(tu)
+          .Append(")</th><th>π/√(ab) (").Append(tu).Append(")</th><th>∮dθ/θ̇ (").Append(tu).Append(")</th><th>revolutions</th><th>flags</th>")
           .Append("</tr></thead>\n<tbody>\n");
         foreach (var r in report.Runs.OrderBy(r => r.Param))
         {
@@ -306,16 +361,60 @@ public static partial class HtmlReport
         sb.Append("</ul></section>\n");
     }
 
-    private static void Methods(StringBuilder sb)
+    /// <summary>The method notes of what ran on these runs: smoothing and the field only when a run was smoothed, the ellipse only for positions, event times only for events.</summary>
+    private static void Methods(StringBuilder sb, AnalysisReport report)
     {
         sb.Append("<section id=\"methods\"><h2>Method notes</h2>\n<dl>\n");
+        var smoothed = report.Runs.Any(r => r.Smoothing is not null);
+        var fields = report.Runs.Any(r => r.Field is not null);
+        var bottleneck = report.Runs.Any(r => r.Bottleneck is not null);
+        var positions = report.Runs.Any(r => r.Orbit is not null);
+        var events = report.Runs.Any(r => r.Flags.Contains(RunFlag.PeriodsOnly));
+        var notes = new List<(string Term, string Text)>();
+        if (positions)
+        {
+            notes.Add(OrbitNote);
+        }
+
+        if (events)
+        {
+            notes.Add(EventNote);
+        }
+
         foreach (var (term, text) in MethodNotes)
+        {
+            var ran = term switch
+            {
+                "Phase velocity" => smoothed,
+                "Field on the circle" => fields,
+                "Bottleneck normal form" => bottleneck,
+                _ => true,
+            };
+            if (ran)
+            {
+                notes.Add((term, term == "Periods" && !bottleneck ? PeriodsWithoutBottleneck : text));
+            }
+        }
+
+        foreach (var (term, text) in notes)
         {
             sb.Append("<dt>").Append(E(term)).Append("</dt><dd>").Append(E(text)).Append("</dd>\n");
         }
 
         sb.Append("</dl></section>\n");
     }
+
+    private static readonly (string Term, string Text) OrbitNote = ("Positions to phase", "For runs recorded as positions, an ellipse " +
+        "is fitted to the orbit (direct least squares, Fitzgibbon, Pilu & Fisher 1999, each sample weighted by the arc it covers) and " +
+        "the phase is the parametric angle in its axes; positions far off it are dropped. An orbit far from an ellipse gives a " +
+        "protophase, which leaves onset and periods unchanged. The orbit figure shows the samples, the fitted orbit and the rejected points.");
+
+    private static readonly (string Term, string Text) EventNote = ("Event times", "For runs recorded as event times (one event per " +
+        "revolution) there is no phase between events: no smoothing, field or bottleneck fit ran on them, and they enter the period " +
+        "route only, through the mean interval between events.");
+
+    private const string PeriodsWithoutBottleneck = "The measured period is the mean time between crossings of one phase (or between " +
+        "events), with its standard error from the spread of the revolutions.";
 
     private static readonly (string Term, string Text)[] MethodNotes =
     [
@@ -335,6 +434,11 @@ public static partial class HtmlReport
             "(the bottleneck passage plus a constant excursion time; Strogatz §4.3), μc by profile likelihood with the same Birge-scaled " +
             "test, and uses it when AICc, computed for both as densities of the measured periods, prefers it."),
         ("Agreement", "z = (μc₁ − μc₂)/√(σ₁² + σ₂²); |z| > 2 is reported as a disagreement with its most likely reason."),
+        ("Recommended onset", "When the routes agree, their inverse-variance weighted mean Σwᵢμcᵢ/Σwᵢ with wᵢ = 1/σᵢ² and standard error " +
+            "(Σwᵢ)^−½ (Cochran 1954), its 95% interval from the routes' own quantiles; when they disagree, the route without a law " +
+            "misfit, else the period route; when only one route gives a bounded interval, that route; none when the onset is not a " +
+            "saddle-node on the circle. The two routes share the runs, so their errors may be correlated; the seeded calibration of " +
+            "this interval is in docs/methods.md."),
         ("Scaling", "T = C|μ − μc|^(−β), fitted on log T with μc free and up to two correction terms chosen by AICc. " +
             "A saddle-node on the circle gives β = ½ (Strogatz §4.3)."),
     ];
@@ -426,7 +530,13 @@ public static partial class HtmlReport
         thead th{border-bottom:2px solid var(--ink);white-space:nowrap}
         td.num{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}
         table.answer{font-size:16px;margin-bottom:12px}
-        tr.route-field th{border-left:6px solid var(--field)}
+        tr.route-bottleneck th{border-left:6px solid var(--field)}
+        .recommended{border:2px solid var(--ink);padding:10px 16px;margin:8px 0 16px;max-width:640px}
+        .recommended p{margin:2px 0}
+        .recommended .label{font-weight:bold;color:var(--muted);font-size:15px}
+        .recommended .value{font-size:26px;font-weight:bold;font-variant-numeric:tabular-nums}
+        .recommended .interval{font-size:17px;font-variant-numeric:tabular-nums}
+        .recommended .basis{font-size:14px}
         tr.route-period th{border-left:6px solid var(--period)}
         .verdict{padding:8px 12px;border-left:6px solid var(--muted);background:#f3f3f6;margin:8px 0}
         .verdict.good{border-color:var(--good)}
@@ -448,6 +558,8 @@ public static partial class HtmlReport
         dt{font-weight:bold;margin-top:10px}
         dd{margin:2px 0 0 0}
         .caution{padding:10px 14px;border:2px solid var(--warn);background:#fff8ea;font-weight:bold}
+        .next-wrap{display:flex;gap:16px;align-items:flex-start;flex-wrap:wrap}
+        .next-wrap .caution{flex:1 1 260px;margin:0;font-size:14px}
 
         """;
 }

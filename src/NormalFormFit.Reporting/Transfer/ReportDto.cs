@@ -47,6 +47,7 @@ internal sealed record ReportDto
         Units = new UnitsDto { Param = report.ParamUnits, Time = report.TimeUnit },
         Onset = new OnsetSectionDto
         {
+            Recommended = RecommendedDto.From(report.Recommended),
             FromBottleneck = RouteDto.From(report.FromBottleneck, report.Verdict),
             FromPeriod = RouteDto.From(report.FromPeriod, report.Verdict),
             Agreement = new AgreementDto { Z = report.Agreement.Z, Consistent = report.Agreement.Consistent, Reason = report.Agreement.Reason },
@@ -91,14 +92,43 @@ internal sealed record DroppedRowsDto
     public NormalFormFit.Ingest.DroppedRows ToRows() => new(Blank, LowQuality, OffOrbit, PhaseJumps);
 }
 
-/// <summary><c>onset</c>: the two routes and whether they agree.</summary>
+/// <summary><c>onset</c>: the recommended onset, then the two routes and whether they agree.</summary>
 internal sealed record OnsetSectionDto
 {
+    public required RecommendedDto Recommended { get; init; }
+
     public required RouteDto FromBottleneck { get; init; }
 
     public required RouteDto FromPeriod { get; init; }
 
     public required AgreementDto Agreement { get; init; }
+}
+
+/// <summary><c>onset.recommended</c>: the one onset to act on; value, se and bounds null when none is recommended.</summary>
+internal sealed record RecommendedDto
+{
+    public double Value { get; init; }
+
+    public double Se { get; init; }
+
+    public double Ci95Low { get; init; }
+
+    public double Ci95High { get; init; }
+
+    /// <summary>"combined", "bottleneck", "period" or "none".</summary>
+    public required string Basis { get; init; }
+
+    public required string Reason { get; init; }
+
+    public static RecommendedDto From(RecommendedOnset r) => new()
+    {
+        Value = r.Value,
+        Se = r.StandardError,
+        Ci95Low = r.Ci95.Low,
+        Ci95High = r.Ci95.High,
+        Basis = WireNames.Of(r.Basis),
+        Reason = r.Reason,
+    };
 }
 
 /// <summary><c>onset.from_bottleneck</c>, <c>onset.from_period</c>.</summary>

@@ -24,6 +24,9 @@ public sealed record AnalysisReport(
     /// <summary>All diagnostics: the set's, then each run's.</summary>
     public IEnumerable<Diagnostic> AllDiagnostics => Diagnostics.Concat(Runs.SelectMany(r => r.Diagnostics));
 
+    /// <summary>The one onset to act on (<see cref="RecommendedOnset.Choose"/>); the two routes are its evidence.</summary>
+    public RecommendedOnset Recommended { get; init; } = RecommendedOnset.Choose(FromBottleneck, FromPeriod, Agreement, Verdict.Kind);
+
     /// <summary>Units of the control parameter, when the manifest gave them.</summary>
     public string? ParamUnits { get; init; }
 

@@ -101,13 +101,17 @@ public static class OnsetAnalysis
                 $"the two onset routes disagree (z = {agreement.Z:F1}); most likely: {agreement.Reason}")));
         }
 
+        var misfits = new HashSet<OnsetRoute>();
         foreach (var est in new[] { fromA, fromT })
         {
             if (LawMisfit(est) is { } misfit)
             {
                 diags.Add(misfit);
+                misfits.Add(est.Route);
             }
         }
+
+        var recommended = RecommendedOnset.Choose(fromA, fromT, agreement, verdict.Kind, misfits);
 
         var next = new List<NextMeasurement>();
         if (verdict.Kind is OnsetKind.SaddleNodeOnCircle or OnsetKind.Undetermined)
@@ -132,6 +136,7 @@ public static class OnsetAnalysis
         return new AnalysisReport(runs, fromA, fromT, agreement, scaling, verdict, diags)
         {
             ParamUnits = paramUnits,
+            Recommended = recommended,
             NextMeasurements = next,
             BistableRuns = bistable,
         };

@@ -41,7 +41,10 @@ public static class RecordingAnalyzer
                 pre.Add(new Diagnostic(Severity.Info, "orbit", string.Create(CultureInfo.InvariantCulture,
                     $"ellipse centre ({orbit.Ellipse.CentreX:G5}, {orbit.Ellipse.CentreY:G5}), semi-axes {orbit.Ellipse.SemiMajor:G4} and {orbit.Ellipse.SemiMinor:G4}, tilt {orbit.Ellipse.Tilt * 180 / Math.PI:F1}°, RMS deviation {orbit.RmsDeviation:P2}; turning {orbit.Sense}"),
                     file));
-                return FromPhase(phase, param, file, label, options, RecordingKind.Positions, orbit, pre);
+                var fromPositions = FromPhase(phase, param, file, label, options, RecordingKind.Positions, orbit, pre);
+                return fromPositions.Value is { } run
+                    ? new Loaded<RunResult>(run with { OrbitView = OrbitView.From(positions, phase, orbit.Ellipse, run.Bottleneck?.Phase.Value ?? double.NaN, run.Direction) }, fromPositions.Diagnostics)
+                    : fromPositions;
             case PhaseRecording phaseRecording:
                 if (PhaseChecks.NotAPhase(phaseRecording) is { } notAPhase)
                 {

@@ -92,7 +92,7 @@ public static class RunChecks
     /// <summary>Less than <see cref="MinimumTurns"/> turn: a resting run (below onset?), no period.</summary>
     public static RunFinding? NotTurning(string file, double turns) => turns < MinimumTurns
         ? new(RunFlag.NotTurning, Info(file, "not-turning", string.Create(Inv,
-            $"the phase advances only {turns:F2} turns: the run does not turn (below onset?); no period is measured")))
+            $"the phase advances only {turns:F2} revolutions: the run does not turn (below onset?); no period is measured")))
         : null;
 
     /// <summary>No parabola opening upward fits the slowest part of the field.</summary>

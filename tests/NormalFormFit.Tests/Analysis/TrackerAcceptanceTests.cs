@@ -129,7 +129,7 @@ public class TrackerAcceptanceTests
         Assert.Contains("μ is voltage in V, time in s", text, StringComparison.Ordinal);
         Assert.Contains("T meas (s)", text, StringComparison.Ordinal);
         Assert.Contains("param (V)", text, StringComparison.Ordinal);
-        Assert.Matches(@"from bottleneck \(a → 0\):\s+μc = [0-9.]+ ± [0-9.]+ V", text);
+        Assert.Matches(@"bottleneck route \(a → 0\):\s+μc = [0-9.]+ ± [0-9.]+ V", text);
     }
 
     [Fact]

@@ -20,7 +20,7 @@ public class AnalyzeCommandTests
         var json = dir.File("report.json");
         var (code, stdout, stderr) = CliTestHost.Run("analyze", manifest, "--json", json);
         Assert.True(code == 0, stderr);
-        Assert.Contains("from bottleneck", stdout, StringComparison.Ordinal);
+        Assert.Contains("bottleneck route", stdout, StringComparison.Ordinal);
 
         using var doc = JsonDocument.Parse(File.ReadAllText(json));
         var root = doc.RootElement;
@@ -35,6 +35,17 @@ public class AnalyzeCommandTests
             Assert.Contains(o.GetProperty("law").GetString(), new[] { "polynomial", "square-root-with-offset" });
             Assert.False(string.IsNullOrEmpty(o.GetProperty("law_description").GetString()));
         }
+
+        // The recommended onset comes first in the onset section, and first in the text.
+        var rec = root.GetProperty("onset").GetProperty("recommended");
+        Assert.Equal("recommended", root.GetProperty("onset").EnumerateObject().First().Name);
+        Assert.Contains(rec.GetProperty("basis").GetString(), new[] { "combined", "bottleneck", "period" });
+        var rv = rec.GetProperty("value").GetDouble();
+        Assert.InRange(rv, 0.99, 1.01);
+        Assert.True(rec.GetProperty("ci95_low").GetDouble() <= rv && rv <= rec.GetProperty("ci95_high").GetDouble());
+        Assert.True(rec.GetProperty("se").GetDouble() > 0);
+        Assert.False(string.IsNullOrEmpty(rec.GetProperty("reason").GetString()));
+        Assert.True(stdout.IndexOf("recommended:", StringComparison.Ordinal) < stdout.IndexOf("bottleneck route (a → 0)", StringComparison.Ordinal));
 
         Assert.Equal(JsonValueKind.Number, root.GetProperty("onset").GetProperty("agreement").GetProperty("z").ValueKind);
         Assert.True(root.GetProperty("onset").GetProperty("agreement").TryGetProperty("consistent", out _));

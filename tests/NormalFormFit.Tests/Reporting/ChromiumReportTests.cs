@@ -91,7 +91,7 @@ public class ChromiumReportTests(DemoFolder demo)
         var (dark, colours, blue) = Ink(bitmap);
         Assert.True(dark > 0.02, $"only {dark:P1} of the screenshot is ink");
         Assert.True(colours > 50, $"only {colours} distinct colours in the screenshot");
-        Assert.True(blue, "no pixel of the field-route blue: the figures did not render");
+        Assert.True(blue, "no pixel of the bottleneck-route blue: the figures did not render");
     }
 
     [ChromiumFact]
@@ -193,7 +193,7 @@ public class ChromiumReportTests(DemoFolder demo)
                 dark += c.Red + c.Green + c.Blue < 3 * 200 ? 1 : 0;
                 colours.Add((uint)c);
 
-                // Within 24 levels per channel of FigurePalette.Field (#1F5AA6): antialiasing shifts a few levels.
+                // Within 24 levels per channel of FigurePalette.Bottleneck (#1F5AA6): antialiasing shifts a few levels.
                 blue |= Math.Abs(c.Red - 0x1F) < 24 && Math.Abs(c.Green - 0x5A) < 24 && Math.Abs(c.Blue - 0xA6) < 24;
             }
         }

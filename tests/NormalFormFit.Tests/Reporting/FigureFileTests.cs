@@ -10,12 +10,13 @@ public class FigureFileTests
     private static readonly byte[] PngSignature = [0x89, 0x50, 0x4E, 0x47, 0x0D, 0x0A, 0x1A, 0x0A];
 
     [Fact]
-    public void Figures_ForDemoData_AreTheSixTheReportPromises()
+    public void Figures_ForDemoData_AreTheSevenTheReportPromises()
     {
         var names = DemoReport.Figures.Select(f => f.Name).ToArray();
 
-        // The list of figures is the report's own specification (issue: fields, a, T⁻², scaling, periods, residuals).
-        Assert.Equal(["field", "trend-a", "trend-period", "scaling", "periods", "residuals"], names);
+        // The list of figures is the report's own specification (fields, a, T⁻², the onsets close up, scaling,
+        // periods, residuals; the orbits only for positions).
+        Assert.Equal(["field", "trend-a", "trend-period", "onsets", "scaling", "periods", "residuals"], names);
     }
 
     [Fact]
@@ -77,7 +78,7 @@ public class FigureFileTests
         }
 
         // The two route colours differ in lightness by at least a fifth of the scale (common practice, no source).
-        Assert.True(Math.Abs(Luma(FigurePalette.Field) - Luma(FigurePalette.Period)) > 50);
+        Assert.True(Math.Abs(Luma(FigurePalette.Bottleneck) - Luma(FigurePalette.Period)) > 50);
     }
 
     private static double DarkFraction(SKBitmap bitmap)

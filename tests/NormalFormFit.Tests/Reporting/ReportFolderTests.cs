@@ -51,7 +51,7 @@ public class ReportFolderTests(DemoFolder demo)
     [Fact]
     public void AnalyzeOut_WritesThePageEveryFigureAsPngAndSvgTheTablesAndTheJson()
     {
-        string[] figures = ["field", "trend-a", "trend-period", "scaling", "periods", "residuals"];
+        string[] figures = ["field", "trend-a", "trend-period", "onsets", "scaling", "periods", "residuals"];
         string[] expected = ["report.html", "report.json", "report.txt", "runs.csv", "field.csv", ReportFolder.Marker, .. figures.SelectMany(f => new[] { f + ".png", f + ".svg" })];
 
         var written = Directory.GetFiles(demo.Report).Select(Path.GetFileName).ToArray();
