@@ -8,11 +8,13 @@ namespace NormalFormFit.Onset;
 /// <param name="Aicc">Its AICc on the likelihood shared by all candidates (+∞: no candidate).</param>
 /// <param name="Ci95">Its own 95% interval (conditional on the model); may be asymmetric or unbounded on a side.</param>
 /// <param name="Quantile">The quantile q that turned its standard error into that interval (Student-t or normal).</param>
-public readonly record struct ModelCandidate(string Name, double Value, double Aicc, Interval Ci95, double Quantile);
+/// <param name="StandardError">Its own (conditional) standard error, for the symmetric unconditional one; NaN: from the
+/// interval's half-widths over <paramref name="Quantile"/>.</param>
+public readonly record struct ModelCandidate(string Name, double Value, double Aicc, Interval Ci95, double Quantile, double StandardError = double.NaN);
 
 /// <summary>A model-averaged estimate.</summary>
 /// <param name="Value">θ̄ = Σ wᵢθᵢ.</param>
-/// <param name="StandardError">Unconditional standard error (symmetric form, mean of the two sides).</param>
+/// <param name="StandardError">Unconditional standard error, eq. 4.9 with the candidates' own standard errors.</param>
 /// <param name="Ci95">θ̄ − q·se₋ … θ̄ + q·se₊, per side.</param>
 /// <param name="Weights">Akaike weights of the candidates, in the order given (0 for candidates left out).</param>
 /// <param name="Best">Index of the candidate with the largest weight.</param>
@@ -104,7 +106,7 @@ public static class ModelAverage
         var above = Side(c => c.Ci95.High - c.Value);
         var q = candidates[best].Quantile;
         var ci = new Interval(mean - (q * below), mean + (q * above));
-        var se = double.IsFinite(below) && double.IsFinite(above) ? 0.5 * (below + above) : Math.Min(below, above);
+        var se = Side(c => double.IsFinite(c.StandardError) ? c.StandardError * c.Quantile : 0.5 * (c.Ci95.High - c.Ci95.Low));
         return new AveragedEstimate(mean, se, ci, w, best);
     }
 

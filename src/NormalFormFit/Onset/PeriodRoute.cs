@@ -64,7 +64,7 @@ public static class PeriodRoute
             estimates.Add((ToEstimate(l, polyAicc), l.Aicc, l.Law.Description, l));
         }
 
-        var candidates = estimates.Select(e => new ModelCandidate(e.Name, e.Estimate.Value, e.Aicc, e.Estimate.Ci95, Quantile(e.Estimate.Curve!))).ToList();
+        var candidates = estimates.Select(e => new ModelCandidate(e.Name, e.Estimate.Value, e.Aicc, e.Estimate.Ci95, Quantile(e.Estimate.Curve!), e.Estimate.StandardError)).ToList();
         var avg = ModelAverage.Average(candidates);
         if (avg is null)
         {
@@ -88,6 +88,12 @@ public static class PeriodRoute
         var best = estimates[avg.Best];
         var diags = best.Estimate.Diagnostics.Where(d => d.Code != "unbounded-interval").ToList();
         var inv = CultureInfo.InvariantCulture;
+        if (best.Law is null && best.Estimate.Trend is { Degree: 2 })
+        {
+            diags.Add(new Diagnostic(Severity.Info, "curved-trend",
+                "the period route uses a trend with a curvature term (preferred by AICc over a straight line)"));
+        }
+
         if (avg.Weights.Count(w => w > 0) > 1)
         {
             diags.Add(new Diagnostic(Severity.Info, "period-laws-averaged", string.Create(inv,

@@ -156,7 +156,7 @@ public static class ScalingFit
         Onset.ModelAverage.Average([.. candidates.Select(c =>
         {
             var q = c.Dof > 0 ? StudentT.InvCDF(0, 1, c.Dof, 0.975) : double.NaN;
-            return new Onset.ModelCandidate($"{c.Form} +{c.Corrections}", c.Beta, c.Dof > 0 && double.IsFinite(c.BetaSe) ? c.Aicc : double.PositiveInfinity, new Interval(c.Beta - (q * c.BetaSe), c.Beta + (q * c.BetaSe)), q);
+            return new Onset.ModelCandidate($"{c.Form} +{c.Corrections}", c.Beta, c.Dof > 0 && double.IsFinite(c.BetaSe) ? c.Aicc : double.PositiveInfinity, new Interval(c.Beta - (q * c.BetaSe), c.Beta + (q * c.BetaSe)), q, c.BetaSe);
         })]);
 
     /// <summary>
