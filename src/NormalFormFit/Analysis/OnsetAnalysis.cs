@@ -27,7 +27,7 @@ public static class OnsetAnalysis
     /// source: it never fired in the 800 calibration fits, where correct laws reached 10.7, and fires on near-noise-free
     /// spike times fitted by a law of the wrong shape).
     /// </summary>
-    public const double LawMisfitFactor = 4.0;
+    public const double LawMisfitFactor = PeriodRoute.MisfitFactor;
 
     /// <summary>
     /// Runs whose smoothed phase scatters by less than this (radians) about the spline carry no measurement noise: a

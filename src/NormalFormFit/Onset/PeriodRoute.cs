@@ -26,29 +26,137 @@ public static class PeriodRoute
 
     /// <summary>The period route's estimate from the runs' (μ, T⁻², se(T⁻²)) points.</summary>
     /// <param name="points">Turning runs: y = T⁻² with se(y) = 2 se(T)/T³.</param>
-    /// <param name="maxLawCoefficients">2: only T = αd^−½ + β; 3 (default): also with the next term γd^½ of the same
-    /// expansion, the two chosen by AICc, as the scaling law chooses its corrections.</param>
-    public static OnsetEstimate Estimate(IReadOnlyList<TrendPoint> points, int maxLawCoefficients = 3)
+    /// <param name="maxLawCoefficients">Most coefficients of the square-root law T = Σ cₖd^((k−1)/2): 2 (α, β), 3 (+ γd^½)
+    /// or 4 (default; + δd), each while two residual degrees of freedom remain.</param>
+    /// <param name="average">True (default): the onset averaged over all candidate laws with Akaike weights and the
+    /// unconditional error of Burnham &amp; Anderson (<see cref="ModelAverage"/>); false: the single law AICc prefers.</param>
+    public static OnsetEstimate Estimate(IReadOnlyList<TrendPoint> points, int maxLawCoefficients = 4, bool average = true)
     {
         ArgumentNullException.ThrowIfNull(points);
         var poly = TrendFit.Root(OnsetRoute.Period, points);
-        var law = FitLaw(points, maxLawCoefficients);
-        if (law is null)
+        var laws = FitLaws(points, maxLawCoefficients);
+        if (laws.Count == 0)
         {
             return poly;
         }
 
         var polyAicc = poly.Trend is { } t ? TrendFit.Aicc(t, points.Count) : double.PositiveInfinity;
-        if (!(law.Aicc < polyAicc))
+        var law = laws.MinBy(l => l.Aicc)!;
+        if (!average)
         {
-            return poly;
+            return law.Aicc < polyAicc ? ToEstimate(law, polyAicc) : poly;
         }
 
-        return ToEstimate(law, polyAicc);
+        // The candidates: straight line and quadratic in T⁻², and each square-root law; one likelihood of the measured
+        // periods (see the class remarks), so their AICc compare.
+        var estimates = new List<(OnsetEstimate Estimate, double Aicc, string Name, SquareRootLawResult? Law)>();
+        foreach (var degree in new[] { 1, 2 })
+        {
+            var e = TrendFit.RootOfDegree(OnsetRoute.Period, points, degree);
+            if (e.IsAvailable && e.Trend is { } tr)
+            {
+                estimates.Add((e, TrendFit.Aicc(tr, points.Count), degree == 1 ? "straight line in T⁻²" : "quadratic in T⁻²", null));
+            }
+        }
+
+        foreach (var l in laws)
+        {
+            estimates.Add((ToEstimate(l, polyAicc), l.Aicc, l.Law.Description, l));
+        }
+
+        var candidates = estimates.Select(e => new ModelCandidate(e.Name, e.Estimate.Value, e.Aicc, e.Estimate.Ci95, Quantile(e.Estimate.Curve!), e.Estimate.StandardError)).ToList();
+        var avg = ModelAverage.Average(candidates);
+        if (avg is null)
+        {
+            return law.Aicc < polyAicc ? ToEstimate(law, polyAicc) : poly;
+        }
+
+        // A best law that misses its runs far beyond their errors (systematic residuals, not noise): AICc, which reads
+        // the misfit as scatter, cannot choose between it and the next order of the same expansion. The next order
+        // then gets at least the best's weight, so that the interval carries the change the next term makes — the
+        // error of a truncated expansion is of the order of its first omitted term (common practice, no source).
+        var raised = false;
+        if (estimates[avg.Best].Law is { } bestLaw && Misfits(bestLaw.Law)
+            && estimates.FindIndex(e => e.Law is { } l && l.Law.Coefficients.Length == bestLaw.Law.Coefficients.Length + 1) is var next and >= 0
+            && candidates[next].Aicc > candidates[avg.Best].Aicc)
+        {
+            candidates[next] = candidates[next] with { Aicc = candidates[avg.Best].Aicc };
+            avg = ModelAverage.Average(candidates)!;
+            raised = true;
+        }
+
+        var best = estimates[avg.Best];
+        var diags = best.Estimate.Diagnostics.Where(d => d.Code != "unbounded-interval").ToList();
+        var inv = CultureInfo.InvariantCulture;
+        if (best.Law is null && best.Estimate.Trend is { Degree: 2 })
+        {
+            diags.Add(new Diagnostic(Severity.Info, "curved-trend",
+                "the period route uses a trend with a curvature term (preferred by AICc over a straight line)"));
+        }
+
+        if (avg.Weights.Count(w => w > 0) > 1)
+        {
+            diags.Add(new Diagnostic(Severity.Info, "period-laws-averaged", string.Create(inv,
+                $"the period route averages its onset over the laws that compete for the periods (Akaike weights: {avg.Describe(candidates)}); the interval carries their spread (Burnham & Anderson 2002, eq. 4.9)")));
+        }
+
+        // The series T = Σ cₖd^((k−1)/2) truncated: its highest-order law fitted carries most weight, or the orders
+        // beyond the first disagree by more than their own errors — further terms, which these runs cannot resolve,
+        // could move the onset again.
+        var top = estimates.Where(e => e.Law is not null).MaxBy(e => e.Law!.Law.Coefficients.Length);
+        if (raised || (best.Law is { } bl && Misfits(bl.Law) && ReferenceEquals(best.Law, top.Law)))
+        {
+            diags.Add(new Diagnostic(Severity.Warning, "period-law-truncated", string.Create(inv,
+                $"the period route's best law ({best.Law!.Law.Description}) misses its runs far beyond their errors (χ²/dof = {best.Law.Law.ReducedChiSquare:G3}): the expansion of the period is truncated; {(raised ? "the interval carries the change the next term makes" : "no higher order can be fitted to these runs, so the onset may lie beyond the interval")}; measure more runs close to onset")));
+        }
+
+        if (double.IsInfinity(avg.Ci95.Low) || double.IsInfinity(avg.Ci95.High))
+        {
+            diags.Add(new Diagnostic(Severity.Warning, "unbounded-interval",
+                "the data cannot bound the onset on one side by the period route (the periods do not bend enough toward a singularity); measure closer to onset"));
+        }
+
+        return best.Estimate with { Value = avg.Value, StandardError = avg.StandardError, Ci95 = avg.Ci95, Diagnostics = diags };
+    }
+
+    /// <summary>
+    /// A law misfits when χ²/dof exceeds this multiple of the 0.999 quantile of χ²_dof/dof (common practice, no source:
+    /// see <c>OnsetAnalysis.LawMisfitFactor</c>, which is this value).
+    /// </summary>
+    public const double MisfitFactor = 4.0;
+
+    /// <summary>True when <paramref name="curve"/> misses its runs far beyond their errors (χ²/dof above
+    /// <see cref="MisfitFactor"/> times the 0.999 quantile of χ²_dof/dof, MathNet's ChiSquared.InvCDF).</summary>
+    public static bool Misfits(OnsetCurve curve)
+    {
+        ArgumentNullException.ThrowIfNull(curve);
+        var dof = curve.DegreesOfFreedom;
+        return dof >= 1 && double.IsFinite(curve.ReducedChiSquare)
+            && curve.ReducedChiSquare > MisfitFactor * MathNet.Numerics.Distributions.ChiSquared.InvCDF(dof, 0.999) / dof;
+    }
+
+    /// <summary>The quantile that turned a curve's standard error into its interval.</summary>
+    private static double Quantile(OnsetCurve curve) => curve.Scaled && curve.DegreesOfFreedom > 0
+        ? MathNet.Numerics.Distributions.StudentT.InvCDF(0, 1, curve.DegreesOfFreedom, 0.975)
+        : MathNet.Numerics.Distributions.Normal.InvCDF(0, 1, 0.975);
+
+    /// <summary>Every square-root law with 2 … <paramref name="maxLawCoefficients"/> coefficients that could be fitted.</summary>
+    internal static List<SquareRootLawResult> FitLaws(IReadOnlyList<TrendPoint> points, int maxLawCoefficients)
+    {
+        var found = new List<SquareRootLawResult>();
+        for (var m = 2; m <= maxLawCoefficients; m++)
+        {
+            if (FitLaw(points, m, m) is { } l && l.Law.Coefficients.Length == m)
+            {
+                found.Add(l);
+            }
+        }
+
+        return found;
     }
 
     /// <summary>The best square-root law for the points (null when it is no candidate).</summary>
-    internal static SquareRootLawResult? FitLaw(IReadOnlyList<TrendPoint> points, int maxLawCoefficients = 2)
+    internal static SquareRootLawResult? FitLaw(IReadOnlyList<TrendPoint> points, int maxLawCoefficients = 2, int minLawCoefficients = 2)
     {
         if (points.Count < MinimumRunsForLaw || points.Any(p => !(p.Y > 0)))
         {
@@ -71,7 +179,7 @@ public static class PeriodRoute
             return new PeriodSample(p.Mu, t, p.StandardError * t * t * t / 2);
         }).ToList();
         SquareRootLawResult? best = null;
-        for (var m = 2; m <= maxLawCoefficients; m++)
+        for (var m = minLawCoefficients; m <= maxLawCoefficients; m++)
         {
             // Keep two residual degrees of freedom, as the quadratic trend does.
             if (periods.Count - (m + 1) < 2)

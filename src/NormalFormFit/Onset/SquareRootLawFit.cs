@@ -46,7 +46,7 @@ public static class SquareRootLawFit
     private const int Grid = 120;
 
     /// <summary>
-    /// Fits the law with <paramref name="coefficients"/> coefficients (2: α, β; 3: α, β, γ) to periods on the
+    /// Fits the law with <paramref name="coefficients"/> coefficients (2: α, β; 3: α, β, γ; 4: α, β, γ, δ) to periods on the
     /// turning side <paramref name="side"/> (+1: the runs turn above μc). Null when the profile has no interior
     /// minimum, α ≤ 0, or fewer than p + 1 runs.
     /// </summary>
@@ -55,7 +55,7 @@ public static class SquareRootLawFit
         ArgumentNullException.ThrowIfNull(points);
         var n = points.Count;
         var p = coefficients + 1;
-        if (n <= p || side is not (1 or -1) || coefficients is < 2 or > 3)
+        if (n <= p || side is not (1 or -1) || coefficients is < 2 or > 4)
         {
             return null;
         }

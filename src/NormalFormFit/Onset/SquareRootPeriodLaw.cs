@@ -4,7 +4,7 @@ namespace NormalFormFit.Onset;
 /// The period law of a saddle-node on the circle with a constant excursion time, T = α d^−½ + β [+ γ d^½],
 /// d = s(μ − μc) &gt; 0 on the turning side s, fitted to the periods; shown on the period route's scale as y = T⁻².
 /// </summary>
-/// <param name="Coefficients">α, β[, γ]: T = Σₖ cₖ d^((k−1)/2).</param>
+/// <param name="Coefficients">α, β[, γ[, δ]]: T = Σₖ cₖ d^((k−1)/2).</param>
 /// <param name="Onset">μc.</param>
 /// <param name="Side">+1 when the runs turn above μc, −1 below.</param>
 /// <param name="Covariance">Covariance of (α, β[, γ], μc), scaled by the reduced χ² when <paramref name="Scaled"/>.</param>
@@ -26,9 +26,12 @@ public sealed record SquareRootPeriodLaw(double[] Coefficients, double Onset, in
     public override OnsetLaw Law => OnsetLaw.SquareRootWithOffset;
 
     /// <inheritdoc/>
-    public override string Description => Coefficients.Length == 2
-        ? "T = α(μ−μc)^−½ + β"
-        : "T = α(μ−μc)^−½ + β + γ(μ−μc)^½";
+    public override string Description => Coefficients.Length switch
+    {
+        2 => "T = α(μ−μc)^−½ + β",
+        3 => "T = α(μ−μc)^−½ + β + γ(μ−μc)^½",
+        _ => "T = α(μ−μc)^−½ + β + γ(μ−μc)^½ + δ(μ−μc)",
+    };
 
     /// <inheritdoc/>
     internal override int ParameterCount => Coefficients.Length + 1;

@@ -108,6 +108,29 @@ public static class TrendFit
             }
         }
 
+        return FromTrend(route, trend, points, diags, below);
+    }
+
+    /// <summary>
+    /// The root of the trend of exactly <paramref name="degree"/> through <paramref name="points"/> (errors smoothed as in
+    /// <see cref="Root"/>); a candidate for model averaging. Not available with fewer than degree + 3 points.
+    /// </summary>
+    internal static OnsetEstimate RootOfDegree(OnsetRoute route, IReadOnlyList<TrendPoint> points, int degree)
+    {
+        var least = degree == 1 ? 3 : degree + 3;
+        if (points.Count < least)
+        {
+            return OnsetEstimate.NotAvailable(route, points.Count, new Diagnostic(Severity.Warning, "too-few-runs",
+                $"the {route.Noun()} route needs at least {least} usable runs for this trend, found {points.Count}"));
+        }
+
+        var smoothed = SmoothErrors(points);
+        return FromTrend(route, Fit(smoothed, degree), smoothed, [], 0);
+    }
+
+    private static OnsetEstimate FromTrend(OnsetRoute route, Trend trend, IReadOnlyList<TrendPoint> points, List<Diagnostic> diags, int below)
+    {
+        var n = points.Count;
         var root = NearestRoot(trend, points);
         if (double.IsNaN(root))
         {

@@ -115,7 +115,11 @@ public static class ScalingFit
     public const double InformativeWidth = 1.0;
 
     /// <summary>Fits the scaling law; null when fewer than four usable runs.</summary>
-    public static ScalingResult? Fit(IReadOnlyList<PeriodPoint> runs)
+    /// <param name="runs">The runs' periods.</param>
+    /// <param name="average">True (default): β averaged over all forms with Akaike weights and the unconditional error
+    /// of Burnham &amp; Anderson (2002, eq. 4.9; <see cref="Onset.ModelAverage"/>), so that the interval carries the
+    /// choice of form; false: the form AICc prefers, conditional on it.</param>
+    public static ScalingResult? Fit(IReadOnlyList<PeriodPoint> runs, bool average = true)
     {
         var candidates = Candidates(runs);
         if (candidates.Count == 0)
@@ -128,6 +132,15 @@ public static class ScalingFit
         var q = f.Dof > 0 ? StudentT.InvCDF(0, 1, f.Dof, 0.975) : double.PositiveInfinity;
         var beta = new Estimate(f.Beta, f.BetaSe);
         var ci = new Interval(f.Beta - (q * f.BetaSe), f.Beta + (q * f.BetaSe));
+        if (average && Averaged(candidates) is { } avg)
+        {
+            // The exponent over all forms, weighted by AICc (Burnham & Anderson 2002, §4.2–4.3); the curve shown stays
+            // the best form's.
+            f = candidates[avg.Best];
+            beta = new Estimate(avg.Value, avg.StandardError);
+            ci = avg.Ci95;
+        }
+
         return f.Form == ScalingForm.PowerLawWithOffset
             ? new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), 0, n)
             {
@@ -137,6 +150,14 @@ public static class ScalingFit
             }
             : new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), f.Kappa, n) { LogModel = f.Coefficients };
     }
+
+    /// <summary>β averaged over the forms (null when the average is not defined).</summary>
+    internal static Onset.AveragedEstimate? Averaged(IReadOnlyList<Solution> candidates) =>
+        Onset.ModelAverage.Average([.. candidates.Select(c =>
+        {
+            var q = c.Dof > 0 ? StudentT.InvCDF(0, 1, c.Dof, 0.975) : double.NaN;
+            return new Onset.ModelCandidate($"{c.Form} +{c.Corrections}", c.Beta, c.Dof > 0 && double.IsFinite(c.BetaSe) ? c.Aicc : double.PositiveInfinity, new Interval(c.Beta - (q * c.BetaSe), c.Beta + (q * c.BetaSe)), q, c.BetaSe);
+        })]);
 
     /// <summary>
     /// Every form that could be fitted, with its AICc on the common likelihood of the periods: the log-T form with 0–2

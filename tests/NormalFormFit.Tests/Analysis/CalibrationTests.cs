@@ -61,8 +61,8 @@ public class CalibrationTests(ITestOutputHelper output)
             }
         }
 
-        output.WriteLine($"{modelName}: bottleneck coverage {coverA}/{nA}, mean z {errA.Average():F2}, sd z {Sd(errA):F2}");
-        output.WriteLine($"{modelName}: period coverage {coverT}/{nT}, mean z {errT.Average():F2}, sd z {Sd(errT):F2}; square-root law chosen in {lawT} repeats, covering in {lawCoverT}");
+        output.WriteLine($"{modelName}: bottleneck coverage {coverA}/{nA}, mean z {errA.Average():F2}, sd z {Sd(errA):F2}, RMS z {Rms(errA):F2}");
+        output.WriteLine($"{modelName}: period coverage {coverT}/{nT}, mean z {errT.Average():F2}, sd z {Sd(errT):F2}, RMS z {Rms(errT):F2}; square-root law chosen in {lawT} repeats, covering in {lawCoverT}");
         Assert.Equal(Repeats, nA);
         Assert.Equal(Repeats, nT);
         output.WriteLine($"{modelName}: law-misfit warnings {misfitWarnings} in {Repeats} repeats (two routes each)");
@@ -72,7 +72,15 @@ public class CalibrationTests(ITestOutputHelper output)
         // of a correct law here was 10.7, on the bottleneck route's straight line).
         Assert.InRange(misfitWarnings, 0, 4);
         Assert.InRange(coverT / (double)Repeats, 0.90, 0.98);
+
+        // Two-sided: standard errors too large. With calibrated errors Σz² ~ χ²_200, so RMS z falls below
+        // √(χ²_200(0.001)/200) ≈ 0.83 (MathNet's ChiSquared.InvCDF) with probability 0.001.
+        var floor = Math.Sqrt(MathNet.Numerics.Distributions.ChiSquared.InvCDF(Repeats, 0.001) / Repeats);
+        Assert.True(Rms(errA) >= floor, $"bottleneck RMS z {Rms(errA):F2} below {floor:F2}");
+        Assert.True(Rms(errT) >= floor, $"period RMS z {Rms(errT):F2} below {floor:F2}");
     }
+
+    private static double Rms(List<double> xs) => Math.Sqrt(xs.Average(x => x * x));
 
     private static double Sd(List<double> xs)
     {

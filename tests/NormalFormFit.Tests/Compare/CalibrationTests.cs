@@ -75,6 +75,12 @@ public abstract class CompareCalibrationChecks(CompareCalibrationRepeats repeats
     // 40 repeats; for other counts (offline runs) the normal approximation to the same tails (z = 2.2).
     private int MinCovered => repeats.Count == 40 ? 35 : (int)Math.Floor((0.95 * repeats.Count) - (2.2 * Math.Sqrt(0.95 * 0.05 * repeats.Count)));
 
+    // The other side: intervals too wide. With calibrated standard errors z is about N(0, 1), so Σz² ~ χ²_R and RMS z
+    // falls below √(χ²_R(0.001)/R) (0.67 for R = 40; MathNet's ChiSquared.InvCDF) with probability 0.001; standard
+    // errors 1.5 times too large (RMS z ≈ 0.67) fail about half the time, twice too large (≈ 0.5) almost always. A
+    // coverage count alone cannot see this: 40 of 40 cover with probability 0.13 at 95%.
+    private double RmsFloor => Math.Sqrt(MathNet.Numerics.Distributions.ChiSquared.InvCDF(repeats.Count, 0.001) / repeats.Count);
+
     private int MaxRejected => repeats.Count == 40 ? 5 : (int)Math.Ceiling((0.05 * repeats.Count) + (2.2 * Math.Sqrt(0.05 * 0.95 * repeats.Count)));
 
     [Fact]
@@ -107,8 +113,10 @@ public abstract class CompareCalibrationChecks(CompareCalibrationRepeats repeats
                 var p = c.Parameters.Append(c.Offset).Append(c.Scale).ElementAt(u);
                 return p.Ci95.Low <= CompareCalibrationRepeats.Truth[u] && CompareCalibrationRepeats.Truth[u] <= p.Ci95.High;
             });
-            output.WriteLine($"parameter {u}: {covered} of {repeats.Count} cover; z mean {z.Average():F2}, RMS {Math.Sqrt(z.Average(x => x * x)):F2}");
+            var rms = Math.Sqrt(z.Average(x => x * x));
+            output.WriteLine($"parameter {u}: {covered} of {repeats.Count} cover; z mean {z.Average():F2}, RMS {rms:F2}");
             Assert.True(covered >= MinCovered, $"parameter {u}: {covered} of {repeats.Count} intervals cover the truth");
+            Assert.True(rms >= RmsFloor, $"parameter {u}: RMS z {rms:F2} below {RmsFloor:F2}: the standard errors are too large");
         }
     }
 
@@ -117,8 +125,10 @@ public abstract class CompareCalibrationChecks(CompareCalibrationRepeats repeats
     {
         var covered = repeats.Results.Count(c => c.OnsetCi95.Low <= CompareCalibrationRepeats.OnsetTruth && CompareCalibrationRepeats.OnsetTruth <= c.OnsetCi95.High);
         var z = repeats.Results.Select(c => (c.Onset.Value - CompareCalibrationRepeats.OnsetTruth) / c.Onset.StandardError).ToList();
-        output.WriteLine($"onset: {covered} of {repeats.Count} cover; z mean {z.Average():F2}, RMS {Math.Sqrt(z.Average(x => x * x)):F2}");
+        var rms = Math.Sqrt(z.Average(x => x * x));
+        output.WriteLine($"onset: {covered} of {repeats.Count} cover; z mean {z.Average():F2}, RMS {rms:F2}");
         Assert.True(covered >= MinCovered, $"{covered} of {repeats.Count} onset intervals cover the truth");
+        Assert.True(rms >= RmsFloor, $"onset: RMS z {rms:F2} below {RmsFloor:F2}: the standard errors are too large");
     }
 
     [Fact]

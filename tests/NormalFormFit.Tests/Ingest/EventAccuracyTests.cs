@@ -81,13 +81,21 @@ public class EventAccuracyTests(ITestOutputHelper output)
         // covers only 75% of the time passes with probability < 1%.
         const int repeats = 60;
         var cover = 0;
+        var z = new List<double>();
         for (var r = 0; r < repeats; r++)
         {
             var t = OnsetAnalysis.Combine(SpikeRuns(1000 + r)).FromPeriod;
             cover += t.Ci95.Contains(0.0) ? 1 : 0;
+            z.Add(t.Value / t.StandardError);
         }
 
-        output.WriteLine($"coverage {cover}/{repeats}");
+        var rms = Math.Sqrt(z.Average(x => x * x));
+        output.WriteLine($"coverage {cover}/{repeats}; mean z {z.Average():F2}, RMS z {rms:F2}");
         Assert.InRange(cover, 51, repeats);
+
+        // Two-sided: intervals too wide cover every time too. With calibrated errors Σz² ~ χ²_60, so RMS z falls below
+        // √(χ²_60(0.001)/60) ≈ 0.72 (MathNet's ChiSquared.InvCDF) with probability 0.001; errors 1.5 times too large
+        // (RMS ≈ 0.67) fail. No upper bound on RMS z: the coverage bound above already fails intervals too narrow.
+        Assert.True(rms >= Math.Sqrt(MathNet.Numerics.Distributions.ChiSquared.InvCDF(repeats, 0.001) / repeats), $"RMS z {rms:F2}: the standard errors are too large");
     }
 }

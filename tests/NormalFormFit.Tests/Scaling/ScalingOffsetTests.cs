@@ -136,27 +136,29 @@ public class ScalingOffsetTests(ITestOutputHelper output)
     }
 
     /// <summary>
-    /// Known gap: with 0.3% errors and eight runs the log-T form with κ₁ and the offset form (both four parameters) are
-    /// often within 2 of each other in AICc; when κ₁ wins, its β (≈ 0.36) is biased and its interval narrow, because
-    /// the interval is conditional on the chosen form and ignores the choice. Measured: 149/200 as reported (offset form
-    /// chosen in 155), against 193/200 for the offset form's own interval. Model averaging over the forms (Burnham &amp;
-    /// Anderson 2002, §4.3) would carry the choice into the interval; not done yet.
+    /// Known gap, narrowed: with 0.3% errors and eight runs the log-T form with κ₁ and the offset form (both four
+    /// parameters) are often within 2 of each other in AICc; when κ₁ wins, its β (≈ 0.36) is biased and its interval
+    /// narrow. Conditional on the chosen form the interval covered ½ in 149/200 repeats. Averaging β over the forms with
+    /// Akaike weights and the unconditional error (Burnham &amp; Anderson 2002, §4.2–4.3, eq. 4.9) carries the choice into
+    /// the interval: measured 168/200 on the same seeds — better, still below the band's lower end (181), because
+    /// where the biased form carries nearly all the weight no average can recover ½ (an open gap, docs/methods.md §7).
     /// </summary>
     /// <remarks>
-    /// Asserted as measured while the gap is open (issue "intervals that stay honest"): coverage stays below the
-    /// binomial band's lower end. When model averaging lands, this test is to become the calibration check again
-    /// (covered within the band).
+    /// Asserted as measured: the averaged interval covers at least 15 more repeats than the conditional one on the same
+    /// seeds (measured 168 against 149), and stays below the band while the gap is open. When it reaches the band, this test is to become the
+    /// calibration check ([181, 197]).
     /// </remarks>
     [Fact]
-    public void ExponentIntervalAsReported_WithLargerErrors_UnderCoversAsMeasured()
+    public void ExponentIntervalAveragedOverForms_WithLargerErrors_CoversMoreThanTheChosenForm_ButStillUnderCovers()
     {
-        var (covered, _, z) = Coverage(0.003, asReported: true);
+        var (averaged, _, z) = Coverage(0.003, asReported: true);
+        var (conditional, _, _) = Coverage(0.003, asReported: true, average: false);
         var cal = Reference().GetProperty("calibration");
-        output.WriteLine($"as reported, errors 0.3%: coverage {covered}/{z.Count} (band from {cal.GetProperty("low").GetInt32()})");
-        Assert.InRange(covered, 120, cal.GetProperty("low").GetInt32() - 1);
+        output.WriteLine($"errors 0.3%: averaged coverage {averaged}/{z.Count}, chosen form alone {conditional}/{z.Count} (band from {cal.GetProperty("low").GetInt32()})");
+        Assert.InRange(averaged, conditional + 15, cal.GetProperty("low").GetInt32() - 1);
     }
 
-    private static (int Covered, int OffsetChosen, List<double> Z) Coverage(double level, bool asReported)
+    private static (int Covered, int OffsetChosen, List<double> Z) Coverage(double level, bool asReported, bool average = true)
     {
         const int repeats = 200; // the R of the binomial band in the reference file
         const double muc = 1.0, c = 0.8;
@@ -177,7 +179,7 @@ public class ScalingOffsetTests(ITestOutputHelper output)
             Interval ci;
             if (asReported)
             {
-                var fit = ScalingFit.Fit(pts)!;
+                var fit = ScalingFit.Fit(pts, average)!;
                 offsetChosen += fit.Form == ScalingForm.PowerLawWithOffset ? 1 : 0;
                 (beta, se, ci) = (fit.Exponent.Value, fit.Exponent.StandardError, fit.Ci95);
             }
