@@ -13,14 +13,17 @@ namespace NormalFormFit.Bottleneck;
 /// <param name="LeftOut">Passages inside bridged gaps too wide to time them.</param>
 public sealed record PeriodMeasurement(double ReferencePhase, double[] CrossingTimes, double[] Periods, Estimate Mean, int Revolutions, int LeftOut)
 {
-    /// <summary>Offsets (radians) from the fast side tried when a passage there falls inside a wide gap (ours).</summary>
-    private static readonly double[] AlternativeOffsets = [0.5, -0.5, 1.0, -1.0];
+    /// <summary>
+    /// Offsets (radians) from the fast side tried, nearest first, when a passage there falls inside a wide gap (ours). A
+    /// reference further from the fast side times each passage with more jitter (δ/θ̇), which the single periods' SD
+    /// carries into the standard error; a lost revolution at a segment's end is lost for good.
+    /// </summary>
+    private static readonly double[] AlternativeOffsets = [0.5, -0.5, 1.0, -1.0, 1.5, -1.5, 2.0, -2.0, 2.5, -2.5];
 
     /// <summary>
     /// <see cref="Measure"/> at <paramref name="fastSide"/>; when a passage there falls inside a gap too wide to time
-    /// it (a revolution at a segment's end is then lost), also at references up to 1 rad to either side, still on the
-    /// fast part of the cycle, keeping the first that spans strictly more revolutions. Records without wide gaps are
-    /// timed at the fast side alone.
+    /// it (a revolution at a segment's end is then lost), also at references up to 2.5 rad to either side, nearest first,
+    /// keeping the first that spans strictly more revolutions. Records without wide gaps are timed at the fast side alone.
     /// </summary>
     public static PeriodMeasurement MeasureAroundFastSide(ReadOnlySpan<double> time, ReadOnlySpan<double> phase, ReadOnlySpan<double> speed, ReadOnlySpan<int> segmentStarts, double fastSide)
     {
