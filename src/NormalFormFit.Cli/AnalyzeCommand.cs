@@ -22,11 +22,15 @@ internal static class AnalyzeCommand
         var qualityCol = new Option<string?>("--quality-column") { Description = "per-sample quality column (default: recognised: confidence, likelihood, quality, score); 'none' to use every row" };
         var minQuality = new Option<double>("--min-quality") { Description = "rows whose quality is below this are missing samples", DefaultValueFactory = _ => RunReader.DefaultMinQuality };
         var decimalComma = new Option<bool>("--decimal-comma") { Description = "numbers in run files use a decimal comma (fields then separated by ';', tab or blanks)" };
-        var kind = new Option<string>("--kind") { Description = "what the run files record: auto (from the columns), phase (t,theta), positions (t,x,y) or events (one column of event times)", DefaultValueFactory = _ => "auto" };
-        kind.AcceptOnlyFromAmong("auto", "phase", "positions", "events");
+        var kind = new Option<string>("--kind") { Description = "what the run files record: auto (from the columns), phase (t,theta), positions (t,x,y), events (one column of event times) or signal (time and one signal such as a voltage, in which events are detected)", DefaultValueFactory = _ => "auto" };
+        kind.AcceptOnlyFromAmong("auto", "phase", "positions", "events", "signal");
         var xCol = new Option<string?>("--x-column") { Description = "positions: x (or first state variable) column, header name or 1-based position (default: recognised: x, x_px, nose_x…)" };
         var yCol = new Option<string?>("--y-column") { Description = "positions: y (or second state variable) column, header name or 1-based position (default: recognised)" };
         var eventCol = new Option<string?>("--event-column") { Description = "events: column of event times, header name or 1-based position (default: the only column, else the time column)" };
+        var signalCol = new Option<string?>("--signal-column") { Description = "signal: the column of the signal (e.g. Vm_mV), header name or 1-based position (default: the one column besides time that is not a phase, position pair, quality or frame number)" };
+        var threshold = new Option<double?>("--event-threshold") { Description = "signal: events are upward crossings of this level, in the signal's unit (default: halfway from the signal's median to the median height of its excursions)" };
+        var hysteresis = new Option<double?>("--event-hysteresis") { Description = "signal: after an event the signal must fall this far below the threshold before the next one counts (default: a quarter of the span from median to tip)" };
+        var refractory = new Option<double?>("--refractory-time") { Description = "signal: a crossing sooner than this after an event (run time unit) is not a new event (default: the median time an event stays above threshold)" };
         var delimiter = new Option<string>("--delimiter") { Description = "field separator of run files: auto, comma, semicolon, tab or whitespace", DefaultValueFactory = _ => "auto" };
         delimiter.AcceptOnlyFromAmong("auto", "comma", "semicolon", "tab", "whitespace");
         var yDown = new Option<bool>("--y-down") { Description = "positions: the y axis points down (image rows); the turning sense is reported as seen on screen" };
@@ -37,7 +41,7 @@ internal static class AnalyzeCommand
         var runsOnly = new Option<string?>("--runs-only") { Description = "analyse the runs only and write one JSON line per run to FILE, for 'nffit combine' (docs/scale.md)" };
         var cmd = new Command("analyze", "Find the onset from a set of runs: bottleneck normal form, periods, scaling")
         {
-            manifest, outDir, json, timeCol, phaseCol, unit, timeUnit, paramUnit, paramCol, qualityCol, minQuality, decimalComma, kind, xCol, yCol, eventCol, delimiter, yDown, unwrapped, threads, quiet, verbose, runsOnly,
+            manifest, outDir, json, timeCol, phaseCol, unit, timeUnit, paramUnit, paramCol, qualityCol, minQuality, decimalComma, kind, xCol, yCol, eventCol, signalCol, threshold, hysteresis, refractory, delimiter, yDown, unwrapped, threads, quiet, verbose, runsOnly,
         };
         cmd.SetAction(pr =>
         {
@@ -63,11 +67,13 @@ internal static class AnalyzeCommand
                         "phase" => RecordingKindOption.Phase,
                         "positions" => RecordingKindOption.Positions,
                         "events" => RecordingKindOption.Events,
+                        "signal" => RecordingKindOption.Signal,
                         _ => RecordingKindOption.Auto,
                     },
                     XColumn = pr.GetValue(xCol),
                     YColumn = pr.GetValue(yCol),
                     EventColumn = pr.GetValue(eventCol),
+                    SignalColumn = pr.GetValue(signalCol),
                     Delimiter = pr.GetValue(delimiter) switch
                     {
                         "comma" => Delimiter.Comma,
@@ -79,13 +85,28 @@ internal static class AnalyzeCommand
                     YDown = pr.GetValue(yDown),
                     PhaseUnwrapped = pr.GetValue(unwrapped),
                 },
+                Run = RunOptions.Default with
+                {
+                    SignalEvents = new SignalEventOptions
+                    {
+                        Threshold = pr.GetValue(threshold),
+                        Hysteresis = pr.GetValue(hysteresis),
+                        RefractoryTime = pr.GetValue(refractory),
+                    },
+                },
                 Parallelism = Math.Max(1, pr.GetValue(threads)),
                 ParamColumn = pr.GetValue(paramCol),
                 ParamUnit = pr.GetValue(paramUnit),
             };
-            if (CommandGuard.ColumnOptions(stderr, ("--time-column", pr.GetValue(timeCol)), ("--phase-column", pr.GetValue(phaseCol)), ("--x-column", pr.GetValue(xCol)), ("--y-column", pr.GetValue(yCol)), ("--event-column", pr.GetValue(eventCol))) is { } badColumn)
+            if (CommandGuard.ColumnOptions(stderr, ("--time-column", pr.GetValue(timeCol)), ("--phase-column", pr.GetValue(phaseCol)), ("--x-column", pr.GetValue(xCol)), ("--y-column", pr.GetValue(yCol)), ("--event-column", pr.GetValue(eventCol)), ("--signal-column", pr.GetValue(signalCol))) is { } badColumn)
             {
                 return badColumn;
+            }
+
+            if (options.Run.SignalEvents.Validate() is { } badEvents)
+            {
+                stderr.WriteLine($"nffit: usage: {badEvents}");
+                return ExitCodes.BadInput;
             }
 
             if (pr.GetValue(runsOnly) is not null && (pr.GetValue(json) is not null || pr.GetValue(outDir) is not null))
@@ -129,7 +150,7 @@ internal static class AnalyzeCommand
                 stderr.WriteLine($"nffit: {d}");
             }
 
-            return errors.Any(e => e.Code == InsufficientData.TooFewRuns || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+            return errors.Any(e => InsufficientData.Codes.Contains(e.Code) || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
         var report = result.Value;

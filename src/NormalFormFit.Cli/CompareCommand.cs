@@ -74,7 +74,7 @@ internal static class CompareCommand
         if (analysis.Value is null)
         {
             Report(stderr, analysis.Diagnostics, null);
-            return analysis.Diagnostics.Any(e => e.Code == InsufficientData.TooFewRuns || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+            return analysis.Diagnostics.Any(e => InsufficientData.Codes.Contains(e.Code) || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
         var runs = new AnalysedRunSet(new RunSet(analysis.Value.Runs, analysis.Value.ParamUnits), analyzeOptions);

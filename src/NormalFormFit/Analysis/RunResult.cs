@@ -117,6 +117,9 @@ public sealed record RunResult(
     /// <summary>The ellipse fitted to the orbit when the run was recorded as positions; null otherwise.</summary>
     public OrbitSummary? Orbit { get; init; }
 
+    /// <summary>For a single-signal recording: the event detector's levels and counts; null otherwise.</summary>
+    public SignalEventSummary? Events { get; init; }
+
     /// <summary>Rows of the run file not used as samples, by reason (none when not known, e.g. run lines of an earlier version).</summary>
     public DroppedRows Dropped { get; init; } = DroppedRows.None;
 }
