@@ -35,6 +35,11 @@ internal static class AnalyzeCommand
             }
 
             var options = reading.Bind(pr, AnalyzeOptions.Default with { Parallelism = Math.Max(1, pr.GetValue(threads)) });
+            if (options.Run.SignalEvents.Validate() is { } badEvents)
+            {
+                stderr.WriteLine($"nffit: usage: {badEvents}");
+                return ExitCodes.BadInput;
+            }
             if (pr.GetValue(runsOnly) is not null && (pr.GetValue(json) is not null || pr.GetValue(outDir) is not null))
             {
                 stderr.WriteLine("nffit: usage: --runs-only writes run results only; make the reports with 'nffit combine FILE --json REPORT --out DIR'");
@@ -76,7 +81,7 @@ internal static class AnalyzeCommand
                 stderr.WriteLine($"nffit: {d}");
             }
 
-            return errors.Any(e => e.Code == InsufficientData.TooFewRuns || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+            return errors.Any(e => InsufficientData.Codes.Contains(e.Code) || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
         var report = result.Value;

@@ -67,7 +67,11 @@ internal static class CommandGuard
             var full = manifest.FullPathOf(entry);
             if (File.Exists(full))
             {
-                hashes.Add((entry.File, entry.Param, HashOrEmpty(full), entry.Line));
+                // Header-only files (runs that did not fire) are alike by nature, not one recording given twice.
+                if (!HeaderOnly(full))
+                {
+                    hashes.Add((entry.File, entry.Param, HashOrEmpty(full), entry.Line));
+                }
             }
         }
 
@@ -183,6 +187,25 @@ internal static class CommandGuard
         }
 
         return null;
+    }
+
+    /// <summary>A small file with at most one line that is not blank or a # comment: a header and no data.</summary>
+    private static bool HeaderOnly(string path)
+    {
+        try
+        {
+            var info = new FileInfo(path);
+            if (info.Length > 4096)
+            {
+                return false;
+            }
+
+            return File.ReadLines(path).Count(l => l.Trim().Length > 0 && !l.TrimStart().StartsWith('#')) <= 1;
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            return false; // The reader reports it.
+        }
     }
 
     private static string HashOrEmpty(string path)

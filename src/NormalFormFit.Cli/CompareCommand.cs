@@ -62,6 +62,13 @@ internal static class CompareCommand
             var startOffset = starts.Remove("c0", out var so) ? so : CompareOptions.Default.StartOffset;
             var startScale = starts.Remove("c1", out var ss) ? ss : CompareOptions.Default.StartScale;
 
+            var analyzeOptions = reading.Bind(pr, AnalyzeOptions.Default);
+            if (analyzeOptions.Run.SignalEvents.Validate() is { } badEvents)
+            {
+                stderr.WriteLine($"nffit: usage: {badEvents}");
+                return ExitCodes.BadInput;
+            }
+
             var options = new CompareOptions
             {
                 Start = starts,
@@ -75,7 +82,7 @@ internal static class CompareCommand
                 PilotReplicates = pr.GetValue(pilot),
                 Seed = pr.GetValue(seed),
             };
-            return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr, pr.GetValue(outDir), reading.Bind(pr, AnalyzeOptions.Default));
+            return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr, pr.GetValue(outDir), analyzeOptions);
         });
         return cmd;
     }
@@ -95,7 +102,7 @@ internal static class CompareCommand
         if (analysis.Value is null)
         {
             Report(stderr, analysis.Diagnostics, null);
-            return analysis.Diagnostics.Any(e => e.Code == InsufficientData.TooFewRuns || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+            return analysis.Diagnostics.Any(e => InsufficientData.Codes.Contains(e.Code) || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
         }
 
         var runs = new AnalysedRunSet(new RunSet(analysis.Value.Runs, analysis.Value.ParamUnits), analyzeOptions);

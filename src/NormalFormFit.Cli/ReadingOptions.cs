@@ -19,10 +19,14 @@ internal sealed class ReadingOptions
     private readonly Option<string?> qualityCol = new("--quality-column") { Description = "per-sample quality column (default: recognised: confidence, likelihood, quality, score); 'none' to use every row" };
     private readonly Option<double> minQuality = new("--min-quality") { Description = "rows whose quality is below this are missing samples", DefaultValueFactory = _ => RunReader.DefaultMinQuality };
     private readonly Option<bool> decimalComma = new("--decimal-comma") { Description = "numbers in run files use a decimal comma (fields then separated by ';', tab or blanks)" };
-    private readonly Option<string> kind = new("--kind") { Description = "what the run files record: auto (from the columns), phase (t,theta), positions (t,x,y) or events (one column of event times)", DefaultValueFactory = _ => "auto" };
+    private readonly Option<string> kind = new("--kind") { Description = "what the run files record: auto (from the columns), phase (t,theta), positions (t,x,y), events (one column of event times) or signal (time and one signal such as a voltage, in which events are detected)", DefaultValueFactory = _ => "auto" };
     private readonly Option<string?> xCol = new("--x-column") { Description = "positions: x (or first state variable) column, header name or 1-based position (default: recognised: x, x_px, nose_x…)" };
     private readonly Option<string?> yCol = new("--y-column") { Description = "positions: y (or second state variable) column, header name or 1-based position (default: recognised)" };
     private readonly Option<string?> eventCol = new("--event-column") { Description = "events: column of event times, header name or 1-based position (default: the only column, else the time column)" };
+    private readonly Option<string?> signalCol = new("--signal-column") { Description = "signal: the column of the signal (e.g. Vm_mV), header name or 1-based position (default: the one column besides time that is not a phase, position pair, quality or frame number)" };
+    private readonly Option<double?> threshold = new("--event-threshold") { Description = "signal: events are upward crossings of this level, in the signal's unit (default: halfway from the signal's median to the median height of its excursions)" };
+    private readonly Option<double?> hysteresis = new("--event-hysteresis") { Description = "signal: after an event the signal must fall this far below the threshold before the next one counts (default: a quarter of the span from median to tip)" };
+    private readonly Option<double?> refractory = new("--refractory-time") { Description = "signal: a crossing sooner than this after an event (run time unit) is not a new event (default: the median time an event stays above threshold)" };
     private readonly Option<string> delimiter = new("--delimiter") { Description = "field separator of run files: auto, comma, semicolon, tab or whitespace", DefaultValueFactory = _ => "auto" };
     private readonly Option<bool> yDown = new("--y-down") { Description = "positions: the y axis points down (image rows); the turning sense is reported as seen on screen" };
     private readonly Option<bool> unwrapped = new("--phase-unwrapped") { Description = "the phase column is already unwrapped: use steps between samples as recorded" };
@@ -30,14 +34,14 @@ internal sealed class ReadingOptions
     public ReadingOptions()
     {
         phaseUnit.AcceptOnlyFromAmong("radians", "degrees", "turns");
-        kind.AcceptOnlyFromAmong("auto", "phase", "positions", "events");
+        kind.AcceptOnlyFromAmong("auto", "phase", "positions", "events", "signal");
         delimiter.AcceptOnlyFromAmong("auto", "comma", "semicolon", "tab", "whitespace");
     }
 
     /// <summary>Adds every reading option to <paramref name="command"/>.</summary>
     public void AddTo(Command command)
     {
-        foreach (var option in new Option[] { timeCol, phaseCol, phaseUnit, timeUnit, paramUnit, paramCol, qualityCol, minQuality, decimalComma, kind, xCol, yCol, eventCol, delimiter, yDown, unwrapped })
+        foreach (var option in new Option[] { timeCol, phaseCol, phaseUnit, timeUnit, paramUnit, paramCol, qualityCol, minQuality, decimalComma, kind, xCol, yCol, eventCol, signalCol, threshold, hysteresis, refractory, delimiter, yDown, unwrapped })
         {
             command.Options.Add(option);
         }
@@ -45,7 +49,7 @@ internal sealed class ReadingOptions
 
     /// <summary>A usage error (exit code) when a column option is empty or not a position from 1; else null.</summary>
     public int? Check(ParseResult pr, TextWriter stderr) =>
-        CommandGuard.ColumnOptions(stderr, ("--time-column", pr.GetValue(timeCol)), ("--phase-column", pr.GetValue(phaseCol)), ("--x-column", pr.GetValue(xCol)), ("--y-column", pr.GetValue(yCol)), ("--event-column", pr.GetValue(eventCol)), ("--param-column", pr.GetValue(paramCol)));
+        CommandGuard.ColumnOptions(stderr, ("--time-column", pr.GetValue(timeCol)), ("--phase-column", pr.GetValue(phaseCol)), ("--x-column", pr.GetValue(xCol)), ("--y-column", pr.GetValue(yCol)), ("--event-column", pr.GetValue(eventCol)), ("--signal-column", pr.GetValue(signalCol)), ("--param-column", pr.GetValue(paramCol)));
 
     /// <summary>The analysis options these reading options give, on top of <paramref name="baseline"/>.</summary>
     public AnalyzeOptions Bind(ParseResult pr, AnalyzeOptions baseline) => baseline with
@@ -70,11 +74,13 @@ internal sealed class ReadingOptions
                 "phase" => RecordingKindOption.Phase,
                 "positions" => RecordingKindOption.Positions,
                 "events" => RecordingKindOption.Events,
+                "signal" => RecordingKindOption.Signal,
                 _ => RecordingKindOption.Auto,
             },
             XColumn = pr.GetValue(xCol),
             YColumn = pr.GetValue(yCol),
             EventColumn = pr.GetValue(eventCol),
+            SignalColumn = pr.GetValue(signalCol),
             Delimiter = pr.GetValue(delimiter) switch
             {
                 "comma" => Delimiter.Comma,
@@ -85,6 +91,15 @@ internal sealed class ReadingOptions
             },
             YDown = pr.GetValue(yDown),
             PhaseUnwrapped = pr.GetValue(unwrapped),
+        },
+        Run = baseline.Run with
+        {
+            SignalEvents = new SignalEventOptions
+            {
+                Threshold = pr.GetValue(threshold),
+                Hysteresis = pr.GetValue(hysteresis),
+                RefractoryTime = pr.GetValue(refractory),
+            },
         },
         ParamColumn = pr.GetValue(paramCol),
         ParamUnit = pr.GetValue(paramUnit),

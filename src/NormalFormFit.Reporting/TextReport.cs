@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Text;
 using NormalFormFit.Analysis;
+using NormalFormFit.Ingest;
 using NormalFormFit.Onset;
 
 namespace NormalFormFit.Reporting;
@@ -112,6 +113,22 @@ public static class TextReport
                 var e = o.Ellipse;
                 sb.AppendLine(string.Create(Inv,
                     $"  {G(r.Param, 6)}: centre ({e.CentreX:G5}, {e.CentreY:G5}), semi-axes {e.SemiMajor:G4} × {e.SemiMinor:G4}, tilt {e.Tilt * 180 / Math.PI:F1}°, RMS deviation {o.RmsDeviation:P2}, {o.Sense}{(o.IsProtophase ? "; NOT an ellipse: phase is a protophase, a and b in protophase units" : string.Empty)}"));
+            }
+        }
+
+        var signals = report.Runs.Where(r => r.Events is not null).ToList();
+        if (signals.Count > 0)
+        {
+            sb.AppendLine();
+            sb.AppendLine("Events in the signal (upward threshold crossings with hysteresis)");
+            foreach (var r in signals)
+            {
+                var ev = r.Events!;
+                sb.AppendLine(double.IsFinite(ev.Threshold)
+                    ? string.Create(Inv,
+                        $"  {G(r.Param, 6)}: {ev.Count} events in '{ev.Column}', threshold {ev.Threshold:G5} ({(ev.ThresholdGiven ? "given" : "from the signal")}), hysteresis {ev.Hysteresis:G4}, refractory {ev.RefractoryTime:G4}{(ev.Glitches + ev.WithinRefractory > 0 ? $"; {ev.Glitches} glitch(es), {ev.WithinRefractory} early crossing(s) left out" : string.Empty)}")
+                    : string.Create(Inv,
+                        $"  {G(r.Param, 6)}: no events in '{ev.Column}': nothing stands {2 * SignalEvents.ClearOfNoise:G} noise SDs above its median {ev.Baseline:G5} (silent, does not turn)"));
             }
         }
 

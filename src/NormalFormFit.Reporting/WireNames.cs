@@ -37,7 +37,8 @@ public static class WireNames
     private static readonly Names<RecordingKind> Recordings = new(
         (RecordingKind.Phase, "phase"),
         (RecordingKind.Positions, "positions"),
-        (RecordingKind.Events, "events"));
+        (RecordingKind.Events, "events"),
+        (RecordingKind.Signal, "signal"));
 
     private static readonly Names<OnsetKind> Kinds = new(
         (OnsetKind.SaddleNodeOnCircle, "saddle-node-on-circle"),

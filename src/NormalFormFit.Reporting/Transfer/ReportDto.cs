@@ -358,6 +358,10 @@ internal sealed record RunDto
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public OrbitDto? Orbit { get; init; }
 
+    /// <summary>Single-signal recordings only: the event detector's levels and counts.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public SignalEventsDto? Events { get; init; }
+
     /// <summary>Always present (zeros when every row was used).</summary>
     public required DroppedRowsDto RowsDropped { get; init; }
 
@@ -410,9 +414,57 @@ internal sealed record RunDto
                 Sense = o.Sense,
             }
             : null,
+        Events = SignalEventsDto.From(r.Events),
         RowsDropped = DroppedRowsDto.From(r.Dropped),
         Flags = [.. flags.Select(WireNames.Of)],
     };
+}
+
+/// <summary>
+/// <c>runs[].events</c>: how events were found in a single signal (levels in the signal's unit, refractory time in the
+/// run's time unit; threshold null when no excursion rose clear of the noise).
+/// </summary>
+internal sealed record SignalEventsDto
+{
+    public required string Column { get; init; }
+
+    public double Threshold { get; init; }
+
+    public required string ThresholdFrom { get; init; }
+
+    public double Hysteresis { get; init; }
+
+    public double RefractoryTime { get; init; }
+
+    public int Count { get; init; }
+
+    public double Baseline { get; init; }
+
+    public double TipLevel { get; init; }
+
+    public double NoiseSd { get; init; }
+
+    public int GlitchesLeftOut { get; init; }
+
+    public int WithinRefractoryLeftOut { get; init; }
+
+    public static SignalEventsDto? From(NormalFormFit.Ingest.SignalEventSummary? s) => s is null ? null : new()
+    {
+        Column = s.Column,
+        Threshold = s.Threshold,
+        ThresholdFrom = s.ThresholdGiven ? "option" : "signal",
+        Hysteresis = s.Hysteresis,
+        RefractoryTime = s.RefractoryTime,
+        Count = s.Count,
+        Baseline = s.Baseline,
+        TipLevel = s.TipLevel,
+        NoiseSd = s.NoiseSd,
+        GlitchesLeftOut = s.Glitches,
+        WithinRefractoryLeftOut = s.WithinRefractory,
+    };
+
+    public NormalFormFit.Ingest.SignalEventSummary ToSummary() =>
+        new(Column, Baseline, TipLevel, NoiseSd, Threshold, Hysteresis, RefractoryTime, Count, GlitchesLeftOut, WithinRefractoryLeftOut, ThresholdFrom == "option");
 }
 
 /// <summary><c>runs[].bottleneck</c>: the normal-form fit θ̇ ≈ a + b(θ − θ*)².</summary>

@@ -65,6 +65,9 @@ internal sealed record RunLineDto
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public DroppedRowsDto? RowsDropped { get; init; }
 
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public SignalEventsDto? Events { get; init; }
+
     public required IReadOnlyList<string> Flags { get; init; }
 
     public required IReadOnlyList<DiagnosticDto> Diagnostics { get; init; }
@@ -141,6 +144,7 @@ internal sealed record RunLineDto
         Relaxation = RelaxationDto.From(r.Relaxation),
         Noise = NoiseDto.From(r.Noise),
         RowsDropped = r.Dropped.Total > 0 ? DroppedRowsDto.From(r.Dropped) : null,
+        Events = SignalEventsDto.From(r.Events),
         Flags = [.. r.Flags.Select(WireNames.Of)],
         Diagnostics = [.. r.Diagnostics.Select(DiagnosticDto.From)],
     };
@@ -174,6 +178,7 @@ internal sealed record RunLineDto
         Relaxation = Relaxation?.ToFit(),
         Noise = Noise?.ToEstimate(),
         Dropped = RowsDropped?.ToRows() ?? DroppedRows.None,
+        Events = Events?.ToSummary(),
     };
 }
 

@@ -29,6 +29,12 @@ public static class InsufficientData
 {
     /// <summary>Fewer than three usable turning runs.</summary>
     public const string TooFewRuns = "insufficient-runs";
+
+    /// <summary>Single-signal runs, none of which has an event: the signals look like noise about a level.</summary>
+    public const string NoSignalEvents = "signal-no-events";
+
+    /// <summary>Both codes.</summary>
+    public static IReadOnlySet<string> Codes { get; } = new HashSet<string>(StringComparer.Ordinal) { TooFewRuns, NoSignalEvents };
 }
 
 /// <summary>Analysed runs before they are combined.</summary>
@@ -194,6 +200,18 @@ public static class ManifestAnalyzer
         ArgumentNullException.ThrowIfNull(set);
         var runs = set.Runs;
         var usable = OnsetAnalysis.UsableRuns(runs);
+        var signals = runs.Where(r => r.Events is not null).ToList();
+        if (signals.Count > 0 && signals.All(r => r.Events!.Count == 0) && runs.All(r => !r.IsTurning))
+        {
+            var columns = string.Join(", ", signals.Select(r => "'" + r.Events!.Column + "'").Distinct());
+            return new Loaded<AnalysisReport>(null,
+            [
+                new Diagnostic(Severity.Error, InsufficientData.NoSignalEvents,
+                    $"none of the {signals.Count} signal runs has an event: column {columns} shows no excursions of one height standing {2 * Ingest.SignalEvents.ClearOfNoise:G} noise standard deviations above its median in any file, like noise about a level; check that it is the signal (--signal-column), or give the level of the events with --event-threshold",
+                    source),
+            ]);
+        }
+
         if (usable < OnsetAnalysis.MinimumRuns)
         {
             var notTurning = runs.Count(r => !r.IsTurning);

@@ -30,6 +30,8 @@ public static class RecordingAnalyzer
         {
             case EventRecording events:
                 return new Loaded<RunResult>(EventRunAnalyzer.Analyze(events, param, file, label, pre) with { Dropped = events.Dropped }, []);
+            case SignalRecording signal:
+                return FromSignal(signal, param, file, label, options, pre);
             case PositionRecording positions:
                 var (phase, orbit, orbitDiags) = OrbitPhase.FromPositions(positions, sharedOrbit);
                 pre.AddRange(orbitDiags.Select(d => d with { File = file }));
@@ -55,6 +57,28 @@ public static class RecordingAnalyzer
             default:
                 throw new UnreachableException($"no analysis for a recording of kind {recording.Kind}");
         }
+    }
+
+    /// <summary>Events detected in the signal (<see cref="SignalEvents"/>), then periods as for event times.</summary>
+    private static Loaded<RunResult> FromSignal(SignalRecording signal, double param, string file, string? label, RunOptions? options, List<Diagnostic> pre)
+    {
+        var detected = SignalEvents.Detect(signal, (options ?? RunOptions.Default).SignalEvents);
+        if (detected.Value is not { } found)
+        {
+            return new Loaded<RunResult>(null, [.. pre, .. detected.Diagnostics.Select(d => d with { File = file })]);
+        }
+
+        var s = found.Summary;
+        var ic = CultureInfo.InvariantCulture;
+        pre.Add(double.IsFinite(s.Threshold)
+            ? new Diagnostic(Severity.Info, "signal-events", string.Create(ic,
+                $"{s.Count} event(s) in column '{s.Column}': upward crossings of {s.Threshold:G5} ({(s.ThresholdGiven ? "given" : $"halfway from the baseline {s.Baseline:G5} to the tip level {s.TipLevel:G5}")}), hysteresis {s.Hysteresis:G4}, refractory time {s.RefractoryTime:G4}; {s.Glitches} glitch(es) and {s.WithinRefractory} crossing(s) within the refractory time left out"),
+                file)
+            : new Diagnostic(Severity.Info, "signal-silent", string.Create(ic,
+                $"column '{s.Column}' has no excursions of one height standing {2 * SignalEvents.ClearOfNoise:G} noise standard deviations ({2 * SignalEvents.ClearOfNoise * s.NoiseSd:G3}) above its median {s.Baseline:G5}: no events, a run that does not turn; give --event-threshold if the events are smaller"),
+                file));
+        var run = EventRunAnalyzer.Analyze(found.Events, param, file, label, pre);
+        return new Loaded<RunResult>(run with { InputKind = RecordingKind.Signal, Events = s, Dropped = signal.Dropped, Samples = signal.Count, Duration = signal.Time[^1] - signal.Time[0] }, []);
     }
 
     /// <summary>Isolated jumps out, gaps bridged or split (<see cref="Trajectory.FromRecording"/>), then the run analysis.</summary>

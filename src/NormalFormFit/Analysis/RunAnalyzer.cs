@@ -18,6 +18,9 @@ public sealed record RunOptions
     /// <summary>Bottleneck options.</summary>
     public BottleneckOptions Bottleneck { get; init; } = BottleneckOptions.Default;
 
+    /// <summary>How events are detected in a single-signal recording.</summary>
+    public SignalEventOptions SignalEvents { get; init; } = SignalEventOptions.Default;
+
     /// <summary>Defaults.</summary>
     public static RunOptions Default { get; } = new();
 }

@@ -120,6 +120,9 @@ public sealed record RunResult(
     /// <summary>The samples, fitted orbit, dropped positions and bottleneck for the orbit figure (positions only; not kept in run lines).</summary>
     public OrbitView? OrbitView { get; init; }
 
+    /// <summary>For a single-signal recording: the event detector's levels and counts; null otherwise.</summary>
+    public SignalEventSummary? Events { get; init; }
+
     /// <summary>Rows of the run file not used as samples, by reason (none when not known, e.g. run lines of an earlier version).</summary>
     public DroppedRows Dropped { get; init; } = DroppedRows.None;
 }

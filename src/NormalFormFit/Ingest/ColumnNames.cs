@@ -25,8 +25,8 @@ public enum ColumnRole
     Bookkeeping,
 
     /// <summary>
-    /// None of the above. A column with another name is not read today; it is the place where a single-signal
-    /// recording (a voltage, a light level) would be recognised.
+    /// None of the above: a time column with one such column is read as a single signal (a voltage <c>Vm_mV</c>, a
+    /// light level, a current), in which events are detected (<see cref="RecordingKind.Signal"/>).
     /// </summary>
     Other,
 }

@@ -11,6 +11,9 @@ public enum RecordingKind
 
     /// <summary>One column of event times (spikes, once-per-turn pulses).</summary>
     Events,
+
+    /// <summary>Time and one signal (a membrane voltage, a light level, one coordinate): events are detected in it.</summary>
+    Signal,
 }
 
 /// <summary>What the user asks run files to be read as: one <see cref="RecordingKind"/>, or inferred from the columns.</summary>
@@ -27,15 +30,18 @@ public enum RecordingKindOption
 
     /// <summary>One column of event times (spikes, once-per-turn pulses).</summary>
     Events,
+
+    /// <summary>Time and one signal (<c>time_ms,Vm_mV</c>): events are detected in it.</summary>
+    Signal,
 }
 
 /// <summary>
 /// A run file as read: one derived record per <see cref="RecordingKind"/> (<see cref="PhaseRecording"/>,
-/// <see cref="PositionRecording"/>, <see cref="EventRecording"/>), each holding only its own data.
+/// <see cref="PositionRecording"/>, <see cref="EventRecording"/>, <see cref="SignalRecording"/>), each holding only its own data.
 /// </summary>
 /// <remarks>
 /// The hierarchy is closed: only this assembly can derive from it (the constructor is private protected), so a switch
-/// over the three kinds is complete; a new kind of recording is a new derived record here.
+/// over the kinds is complete; a new kind of recording is a new derived record here.
 /// </remarks>
 public abstract record RunRecording
 {
@@ -105,4 +111,21 @@ public sealed record EventRecording(string File, double[] Times, int[] SegmentSt
 
     /// <inheritdoc/>
     public override int Count => Times.Length;
+}
+
+/// <summary>One signal versus time (a membrane voltage, a photogate output), as read, split at gaps.</summary>
+/// <param name="File">Path as given by the user.</param>
+/// <param name="Time">Sample times, strictly increasing.</param>
+/// <param name="Values">The signal, in its own unit.</param>
+/// <param name="SegmentStarts">First sample of each segment; events are not timed across a gap.</param>
+public sealed record SignalRecording(string File, double[] Time, double[] Values, int[] SegmentStarts) : RunRecording(File)
+{
+    /// <summary>Header name of the signal column (for messages and the report).</summary>
+    public string SignalColumnName { get; init; } = "signal";
+
+    /// <inheritdoc/>
+    public override RecordingKind Kind => RecordingKind.Signal;
+
+    /// <inheritdoc/>
+    public override int Count => Time.Length;
 }

@@ -44,6 +44,9 @@ public sealed record RunReadOptions
     /// <summary>Event-time column (events); null: the only column, else the time column.</summary>
     public string? EventColumn { get; init; }
 
+    /// <summary>Signal column (a single signal such as <c>Vm_mV</c>): a header name or a 1-based position; null: the one column besides time that is not a phase, position pair, quality or frame number.</summary>
+    public string? SignalColumn { get; init; }
+
     /// <summary>The y axis of the positions points down (image rows): the turning sense is reported as seen on screen.</summary>
     public bool YDown { get; init; }
 
@@ -54,7 +57,7 @@ public sealed record RunReadOptions
     public static RunReadOptions Default { get; } = new();
 }
 
-/// <summary>Reads run files: phase, positions or event times versus time.</summary>
+/// <summary>Reads run files: phase, positions, event times or one signal versus time.</summary>
 public static class RunReader
 {
     /// <summary>
@@ -130,7 +133,7 @@ public static class RunReader
             }
 
             return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "empty-file",
-                "the file holds no data (only blank or # comment lines); expected a header such as 't,theta', 't,x,y' or 'spike_time' and one sample per line", name));
+                "the file holds no data (only blank or # comment lines); expected a header such as 't,theta', 't,x,y', 'time_ms,Vm_mV' or 'spike_time' and one sample per line", name));
         }
 
         if (reader.LineLooksBinary())
@@ -306,6 +309,16 @@ public static class RunReader
             return Loaded.Fail<RunRecording>(reader.TooLongError(name, ExpectedRunText));
         }
 
+        if (values[0].Count == 0 && events && blank + lowQuality == 0)
+        {
+            // A header and no event: a run that did not fire (a silent sweep) is a run that does not turn, not an error.
+            diagnostics.Add(new Diagnostic(Severity.Info, "no-events", "the file has a header but no event times: read as a run without events (it does not turn)", name));
+            return new Loaded<RunRecording>(new EventRecording(name, [], [0])
+            {
+                TimeUnit = options.TimeUnit is { } eu ? ColumnNames.NormaliseUnit(eu) : layout.TimeUnit,
+            }, diagnostics);
+        }
+
         if (values[0].Count == 0)
         {
             var none = blank + lowQuality == 0
@@ -340,6 +353,7 @@ public static class RunReader
         {
             RecordingKind.Phase => new PhaseRecording(name, time, values[1].ToArray(), segs) { Unwrapped = options.PhaseUnwrapped, PhaseColumnName = layout.Names[1] },
             RecordingKind.Positions => new PositionRecording(name, time, values[1].ToArray(), values[2].ToArray(), segs, options.YDown),
+            RecordingKind.Signal => new SignalRecording(name, time, values[1].ToArray(), SplitAtLongSteps(time, segs, out _, out _)) { SignalColumnName = layout.Names[1] },
             _ => new EventRecording(name, time, segs),
         };
         recording = recording with { TimeUnit = timeUnit, Dropped = dropped };
@@ -458,6 +472,7 @@ public static class RunReader
     private static readonly string[] PhaseRoles = ["time", "phase"];
     private static readonly string[] PositionRoles = ["time", "x", "y"];
     private static readonly string[] EventRoles = ["event time"];
+    private static readonly string[] SignalRoles = ["time", "signal"];
 
     private static Layout LayoutWithoutHeader(int fields, RunReadOptions o)
     {
@@ -469,6 +484,7 @@ public static class RunReader
         {
             RecordingKind.Phase => [Pos(o.TimeColumn, 0), Pos(o.PhaseColumn, 1)],
             RecordingKind.Positions => [Pos(o.TimeColumn, 0), Pos(o.XColumn, 1), Pos(o.YColumn, 2)],
+            RecordingKind.Signal => [Pos(o.TimeColumn, 0), Pos(o.SignalColumn, 1)],
             _ => [Pos(o.EventColumn ?? o.TimeColumn, 0)],
         };
         var roles = Roles(kind);
@@ -483,7 +499,7 @@ public static class RunReader
     private static Layout LayoutFromHeader(string[] header, RunReadOptions o)
     {
         var found = string.Join(", ", header);
-        var hint = "expected a time column ('t', 'time', 'time_s'…) with a phase ('theta', 'phase', 'angle_deg'…) or positions ('x', 'y', 'x_px', 'y_px'…), or one column of event times (docs/input-formats.md lists the names); name the columns with --time-column, --phase-column, --x-column, --y-column or --event-column (by header name or 1-based position), or set --kind";
+        var hint = "expected a time column ('t', 'time', 'time_s'…) with a phase ('theta', 'phase', 'angle_deg'…) or positions ('x', 'y', 'x_px', 'y_px'…), or one column of event times (docs/input-formats.md lists the names); name the columns with --time-column, --phase-column, --x-column, --y-column or a time column and one signal such as 'Vm_mV' (docs/input-formats.md lists the names); name the columns with --time-column, --phase-column, --x-column, --y-column, --event-column or --signal-column (by header name or 1-based position), or set --kind";
         var recognised = header.Select(ColumnNames.Recognise).ToArray();
 
         // Candidates for one role; an option names the column instead.
@@ -506,6 +522,12 @@ public static class RunReader
         var ySpec = o.YColumn is { } yo ? Resolve(yo, header)
             : o.XColumn is not null && xSpec >= 0 ? pairs.FirstOrDefault(p => p.X == xSpec, (X: -1, Y: -1)).Y
             : pairs.Count == 1 ? pairs[0].Y : -1;
+
+        // A single signal: a time column and one other column that holds a measurement (not a quality or a frame number).
+        var times0 = Candidates(ColumnRole.Time);
+        var measured = Enumerable.Range(0, header.Length)
+            .Where(i => recognised[i].Role is ColumnRole.Other or ColumnRole.X or ColumnRole.Y && !times0.Contains(i)).ToList();
+        var signalSpec = o.SignalColumn is { } so ? Resolve(so, header) : measured.Count == 1 ? measured[0] : -1;
 
         RecordingKind? requested = Requested(o.Kind);
         if (requested is null)
@@ -531,13 +553,17 @@ public static class RunReader
             {
                 requested = RecordingKind.Events;
             }
+            else if (o.SignalColumn is not null || (signalSpec >= 0 && (o.TimeColumn is not null || times0.Count == 1)))
+            {
+                requested = RecordingKind.Signal;
+            }
         }
 
         if (requested is not { } kind)
         {
             var others = Enumerable.Range(0, header.Length).Where(i => recognised[i].Role == ColumnRole.Other).ToList();
-            var signal = others.Count > 0
-                ? $" (column {Listed(others)} is neither a time, a phase, a position, a quality nor a frame number: nffit does not read a single signal such as a voltage as a phase)"
+            var signal = measured.Count > 1
+                ? $" (columns {Listed(measured)} could each be a single signal: choose one with --signal-column NAME)"
                 : string.Empty;
             return Layout.Failed($"cannot tell what the file records from its header (found: {found}){signal}; {hint}");
         }
@@ -565,6 +591,10 @@ public static class RunReader
             case RecordingKind.Positions:
                 cols = [TimeColumn(), xSpec, ySpec];
                 specs = [o.TimeColumn ?? "t", o.XColumn ?? "x", o.YColumn ?? "y"];
+                break;
+            case RecordingKind.Signal:
+                cols = [TimeColumn(), signalSpec];
+                specs = [o.TimeColumn ?? "t", o.SignalColumn ?? "signal"];
                 break;
             default:
                 var evSpec = o.EventColumn ?? o.TimeColumn;
@@ -638,6 +668,7 @@ public static class RunReader
         RecordingKindOption.Phase => RecordingKind.Phase,
         RecordingKindOption.Positions => RecordingKind.Positions,
         RecordingKindOption.Events => RecordingKind.Events,
+        RecordingKindOption.Signal => RecordingKind.Signal,
         _ => null,
     };
 
@@ -645,6 +676,7 @@ public static class RunReader
     {
         RecordingKind.Phase => PhaseRoles,
         RecordingKind.Positions => PositionRoles,
+        RecordingKind.Signal => SignalRoles,
         _ => EventRoles,
     };
 

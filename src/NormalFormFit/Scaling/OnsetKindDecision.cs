@@ -12,6 +12,14 @@ public static class OnsetKindDecision
     /// <summary>Smallest Akaike weight of the best law for a verdict (evidence ratio 9:1 against the other two; common practice, no source).</summary>
     public const double DecisiveWeight = 0.9;
 
+    /// <summary>
+    /// Periods only (event times, spikes): the largest |β − ½| that still counts as near ½ when the square-root law is
+    /// decisively the best. Noise lets the phase slip through the bottleneck early and shortens the periods nearest onset,
+    /// and runs far from onset add higher-order terms: both pull the fitted β below ½ while the laws' weights still
+    /// single out the square root (our margin; common practice, no source).
+    /// </summary>
+    public const double PeriodsOnlyMargin = 0.15;
+
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
 
     /// <summary>The verdict when there is no scaling law (fewer than four runs with timed periods): undetermined.</summary>
@@ -77,6 +85,9 @@ public static class OnsetKindDecision
                 return (OnsetKind.SaddleNodeOnCircle, text + "; all three point to a saddle-node on the circle");
             case PeriodLaw.SaddleNode when betaHalf && informative && speed.PeriodsOnly:
                 return (OnsetKind.SaddleNodeOnCircle, text + "; the exponent and the period laws point to a saddle-node on the circle (event times carry no phase velocity, so the minimum speed could not be weighed)");
+            case PeriodLaw.SaddleNode when informative && speed.PeriodsOnly && Math.Abs(beta.Value - 0.5) <= PeriodsOnlyMargin:
+                return (OnsetKind.SaddleNodeOnCircle, text + string.Create(Inv,
+                    $"; the square-root law is decisively the best and β lies within {PeriodsOnlyMargin:G} of ½, though its interval excludes ½ (noise that shortens the periods nearest onset, or runs far from onset, lower the fitted exponent): a saddle-node on the circle on the evidence of the periods alone (event times carry no phase velocity, so the minimum speed could not be weighed); runs closer to onset would confirm it"));
             case PeriodLaw.SaddleNode:
                 return (OnsetKind.Undetermined, text + (!betaHalf
                     ? "; the square-root law fits best but β excludes ½: runs may be too far from onset"

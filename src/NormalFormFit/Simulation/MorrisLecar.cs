@@ -116,6 +116,55 @@ public sealed record MorrisLecar : IPlanarSystem
     }
 
     /// <summary>
+    /// The rest state at current <paramref name="current"/> below the knee of I∞(V): V on the lower branch where
+    /// I∞(V) = I (bisection between −120 mV and the knee, to 10⁻¹⁰ mV), w = w∞(V).
+    /// </summary>
+    public (double V, double W) RestState(double current)
+    {
+        var (knee, vKnee) = RestSaddleNode();
+        if (!(current < knee))
+        {
+            throw new ArgumentOutOfRangeException(nameof(current), current, "there is no rest state above the knee of I∞(V)");
+        }
+
+        var v = RootFinding.Bisect(x => SteadyStateCurrent(x) - current, -120, vKnee, new BisectionStop(1e-10, 0.0, 200));
+        return (v, WInf(v));
+    }
+
+    /// <summary>
+    /// A current-clamp sweep: the cell at rest under <paramref name="restCurrent"/>, the current stepped to
+    /// <paramref name="current"/> at t = 0, then classical RK4 with step <paramref name="step"/> (ms) for
+    /// <paramref name="duration"/> ms, every step recorded (so the sampling rate is 1/step). With
+    /// <paramref name="currentNoise"/> &gt; 0, a white noise current of that intensity (μA/cm²·√ms, seeded by
+    /// <paramref name="noiseSeed"/>) is added to each step as an Euler–Maruyama increment on V, (σ/C)·√h·N(0, 1) (Kloeden &amp; Platen 1992, §10.2;
+    /// the drift keeps its RK4 step).
+    /// </summary>
+    public StateTrack Sweep(double current, double duration, double step = 0.05, double restCurrent = 0, double currentNoise = 0, int noiseSeed = 0)
+    {
+        var noise = currentNoise > 0 ? GaussianSource.Create(noiseSeed, stream: 1) : null;
+        var kick = currentNoise / C * Math.Sqrt(step);
+        var (v, w) = RestState(restCurrent);
+        var field = new PlanarSystemField(this, current);
+        var n = (int)Math.Round(duration / step) + 1;
+        var times = new double[n];
+        var vs = new double[n];
+        var ws = new double[n];
+        for (var k = 0; k < n; k++)
+        {
+            times[k] = k * step;
+            vs[k] = v;
+            ws[k] = w;
+            OdeStepper.RungeKutta4(field, step, ref v, ref w);
+            if (noise is not null)
+            {
+                v += kick * noise.Next();
+            }
+        }
+
+        return new StateTrack(times, vs, ws);
+    }
+
+    /// <summary>
     /// Integrates at current <paramref name="current"/> by classical RK4 with step <paramref name="step"/> (ms), records
     /// every <paramref name="every"/>-th step, from the first upward crossing of V = 0 mV (so the transient is dropped)
     /// until <paramref name="spikes"/> further spikes, or <paramref name="maxTime"/> ms.

@@ -177,10 +177,28 @@ public class ColumnRecognitionTests
         Assert.Contains("every data line is a missing sample (1 with a blank or non-finite value, 1 below quality 0.5)", Assert.Single(r.Diagnostics).Message, StringComparison.Ordinal);
     }
 
-    [Fact]
-    public void AColumnThatIsNeitherTimePhasePositionQualityNorFrame_IsNamedInTheError()
+    [Theory]
+    [InlineData("time_s,V_m", "V_m")]
+    [InlineData("time_ms,Vm_mV", "Vm_mV")]
+    [InlineData("t,voltage", "voltage")]
+    [InlineData("t,v", "v")]
+    [InlineData("time (s),frame,signal", "signal")]
+    [InlineData("t [ms],current,confidence", "current")]
+    [InlineData("time,x", "x")]
+    public void ATimeColumnWithOneOtherMeasuredColumn_IsReadAsOneSignal(string header, string column)
     {
-        var r = Read("time_s,V_m\n0,-65\n");
-        Assert.Contains("column 'V_m' is neither a time, a phase, a position, a quality nor a frame number", Assert.Single(r.Diagnostics).Message, StringComparison.Ordinal);
+        var fields = header.Split(',').Length;
+        var row = string.Join(',', Enumerable.Repeat("1", fields - 1));
+        var r = Read($"{header}\n0,{row}\n1,{row}\n");
+        var signal = Assert.IsType<SignalRecording>(r.Value);
+        Assert.Equal(column, signal.SignalColumnName);
+        Assert.Equal([0.0, 1.0], signal.Time);
+    }
+
+    [Fact]
+    public void TwoColumnsThatCouldEachBeTheSignal_AreNamedInTheError()
+    {
+        var r = Read("time_s,V_m,I_cmd\n0,-65,0\n");
+        Assert.Contains("columns 'V_m', 'I_cmd' could each be a single signal: choose one with --signal-column NAME", Assert.Single(r.Diagnostics).Message, StringComparison.Ordinal);
     }
 }

@@ -61,6 +61,21 @@ public class UndeterminedVerdictTests(ITestOutputHelper output)
     }
 
     [Fact]
+    public void PeriodsOnly_WithAnExponentFarFromOneHalf_StayUndetermined()
+    {
+        // The same T = 1/(μ − 1) given as event times (no phase velocity): β = 1 is far outside ½ ± 0.15, so the
+        // allowance for periods only (OnsetKindDecision.PeriodsOnlyMargin) must not make it a saddle-node.
+        PeriodPoint[] periods = [.. Mus.Select(m => new PeriodPoint(m, 1 / (m - 1), 0.01 / (m - 1)))];
+        var scaling = ScalingFit.Fit(periods)!;
+        var speed = new MinimumSpeedTrend(false, double.NaN, new Interval(double.NaN, double.NaN), 0, periods.Length, PeriodsOnly: true);
+        var verdict = OnsetKindDecision.Decide(scaling, PeriodLaws.Weigh(periods), speed);
+        output.WriteLine(verdict.Evidence);
+
+        Assert.True(Math.Abs(scaling.Exponent.Value - 0.5) > OnsetKindDecision.PeriodsOnlyMargin, "precondition: β far from ½");
+        Assert.NotEqual(OnsetKind.SaddleNodeOnCircle, verdict.Kind);
+    }
+
+    [Fact]
     public void FourScatteredRunsWithAnExponentIntervalWiderThanOne_AreUndetermined()
     {
         // Four rotor runs whose periods scatter by their own standard error (8%), alternately high and low: one residual
