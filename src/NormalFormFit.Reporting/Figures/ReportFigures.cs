@@ -622,6 +622,7 @@ public static partial class ReportFigures
 
         plot.HideGrid();
         plot.Axes.Frameless();
+        plot.Title("Orbits of the positions"); // Frameless hides the title panel too (ScottPlot 5 AxisManager.Frameless)
         plot.Axes.SquareUnits();
         plot.Axes.SetLimits(-1.45, ((cols - 1) * cell) + 1.45, -((rows - 1) * cell) - 1.6, 2.4);
         plot.ShowLegend(Alignment.UpperRight);

@@ -45,12 +45,19 @@ public class WireNamesTests
     [Fact]
     public void InputKinds_HaveTheirDocumentedNames_AndReadBack()
     {
-        Assert.Equal(["phase", "positions", "events"], Enum.GetValues<RecordingKind>().Select(WireNames.Of));
+        Assert.Equal(["phase", "positions", "events", "signal"], Enum.GetValues<RecordingKind>().Select(WireNames.Of));
         foreach (var kind in Enum.GetValues<RecordingKind>())
         {
             Assert.True(WireNames.TryParse(WireNames.Of(kind), out RecordingKind back));
             Assert.Equal(kind, back);
         }
+    }
+
+    [Fact]
+    public void TurningSenses_HaveTheNamesCompareDocuments()
+    {
+        // docs/model-expressions.md: turning_sense is forward, backward or mixed.
+        Assert.Equal(["forward", "backward", "mixed"], Enum.GetValues<NormalFormFit.Compare.TurningSense>().Select(WireNames.Of));
     }
 
     [Fact]
