@@ -20,14 +20,31 @@ public sealed record Figure(string Name, string Title, string Caption, Plot Plot
     /// <summary>Pixel height of the rendered figure.</summary>
     public int Height { get; init; } = ReportFigures.DefaultHeight;
 
+    /// <summary>
+    /// One figure renders at a time in the process: rendering from several threads at once (reports written in
+    /// parallel) crashed the process in the native drawing library (a segfault in libSkiaSharp, seen in a test run).
+    /// </summary>
+    private static readonly Lock RenderGate = new();
+
     /// <summary>PNG bytes.</summary>
-    public byte[] Png() => Plot.GetImageBytes(Width, Height, ImageFormat.Png);
+    public byte[] Png()
+    {
+        lock (RenderGate)
+        {
+            return Plot.GetImageBytes(Width, Height, ImageFormat.Png);
+        }
+    }
 
     /// <summary>A standalone SVG document.</summary>
     /// <remarks>A viewBox is added so the drawing scales with its container (an HTML page, a slide).</remarks>
     public string Svg()
     {
-        var svg = Plot.GetSvgXml(Width, Height);
+        string svg;
+        lock (RenderGate)
+        {
+            svg = Plot.GetSvgXml(Width, Height);
+        }
+
         var at = svg.IndexOf("<svg ", StringComparison.Ordinal);
         return at < 0 || svg.Contains("viewBox", StringComparison.Ordinal)
             ? svg
