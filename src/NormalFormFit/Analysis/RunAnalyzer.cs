@@ -1,3 +1,4 @@
+using NormalFormFit.Numerics;
 using System.Globalization;
 using NormalFormFit.Bottleneck;
 using NormalFormFit.Field;
@@ -188,22 +189,44 @@ public static class RunAnalyzer
     }
 
     /// <summary>Half the central difference of <paramref name="x"/> at each sample (one-sided at segment ends).</summary>
+    /// <summary>
+    /// The time each sample covers: half the central difference of the times inside its segment, each side capped at
+    /// <see cref="PeriodMeasurement.GapSteps"/> median steps (the step beyond which a step counts as a bridged gap). The
+    /// time inside a bridged gap belongs to no sample: otherwise the samples at a gap's edges, whose speeds the spline
+    /// determines worst (one-sided), would carry the gap's whole length as weight. Jittered sampling keeps its weights.
+    /// </summary>
     private static double[] HalfCentralDifferences(double[] x, int[] segs)
     {
         var w = new double[x.Length];
+        var cap = 1.5 * MedianStep(x, segs);
         for (var k = 0; k < segs.Length; k++)
         {
             var s = segs[k];
             var e = k + 1 < segs.Length ? segs[k + 1] : x.Length;
             for (var i = s; i < e; i++)
             {
-                var lo = i > s ? x[i - 1] : x[i];
-                var hi = i + 1 < e ? x[i + 1] : x[i];
-                w[i] = Math.Max(0.5 * (hi - lo), 0);
+                var below = i > s ? Math.Min(x[i] - x[i - 1], cap) : 0;
+                var above = i + 1 < e ? Math.Min(x[i + 1] - x[i], cap) : 0;
+                w[i] = Math.Max(0.5 * (below + above), 0);
             }
         }
 
         return w;
+    }
+
+    private static double MedianStep(double[] x, int[] segs)
+    {
+        var steps = new List<double>(x.Length);
+        for (var k = 0; k < segs.Length; k++)
+        {
+            var e = k + 1 < segs.Length ? segs[k + 1] : x.Length;
+            for (var i = segs[k] + 1; i < e; i++)
+            {
+                steps.Add(x[i] - x[i - 1]);
+            }
+        }
+
+        return steps.Count == 0 ? double.PositiveInfinity : SampleStatistics.MedianInPlace(steps.ToArray());
     }
 
     private static Diagnostic Info(string file, string code, string message) => new(Severity.Info, code, message, file);

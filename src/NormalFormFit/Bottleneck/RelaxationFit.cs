@@ -1,3 +1,4 @@
+using NormalFormFit.Numerics;
 using MathNet.Numerics.LinearAlgebra;
 
 namespace NormalFormFit.Bottleneck;
@@ -49,7 +50,7 @@ public static class Relaxation
         }
 
         var tailFrom = Math.Max(n - Math.Max(n / 10, 5), 0);
-        var end = Median(smoothPhase[tailFrom..]);
+        var end = SampleStatistics.Median(smoothPhase[tailFrom..]);
         var sigma = double.IsFinite(noiseSd) && noiseSd > 0 ? noiseSd : 0.0;
         var fits = new List<RelaxationFit>();
         for (var delta = 1.0; delta > 10 * sigma && delta > 1e-4; delta *= 0.5)
@@ -186,13 +187,6 @@ public static class Relaxation
         }
 
         return rss;
-    }
-
-    private static double Median(ReadOnlySpan<double> x)
-    {
-        var c = x.ToArray();
-        Array.Sort(c);
-        return c.Length % 2 == 1 ? c[c.Length / 2] : 0.5 * (c[(c.Length / 2) - 1] + c[c.Length / 2]);
     }
 
     private static double Sq(double x) => x * x;

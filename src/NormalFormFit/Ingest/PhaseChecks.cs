@@ -1,3 +1,4 @@
+using NormalFormFit.Numerics;
 using System.Globalization;
 
 namespace NormalFormFit.Ingest;
@@ -52,7 +53,7 @@ public static class PhaseChecks
         var column = recording.PhaseColumnName is { } c ? $"'{c}'" : "read";
         var ic = CultureInfo.InvariantCulture;
         var hint = "expected an angle in radians, wrapped or winding: if it is in degrees or turns, name the column 'theta_deg' or 'theta_turns' or pass --phase-unit; a signal such as a voltage is not a phase: record the positions (x, y) of a marker, or the time of each cycle as event times";
-        var typical = steps.Count > 0 ? MedianInPlace([.. steps]) : 0.0;
+        var typical = steps.Count > 0 ? SampleStatistics.MedianInPlace([.. steps]) : 0.0;
         if (typical > MaxTypicalStep)
         {
             return new Diagnostic(Severity.Error, "not-a-phase", string.Create(ic,
@@ -119,7 +120,7 @@ public static class PhaseChecks
             return (recording, 0);
         }
 
-        var sigma = 1.4826 * MedianInPlace([.. sample]);
+        var sigma = 1.4826 * SampleStatistics.MedianInPlace([.. sample]);
         var limit = Math.Max(JumpSigmas * sigma, MinJump);
         bool[]? drop = null;
         var removed = 0;
@@ -179,10 +180,4 @@ public static class PhaseChecks
         }, removed);
     }
 
-    private static double MedianInPlace(double[] values)
-    {
-        Array.Sort(values);
-        var m = values.Length / 2;
-        return values.Length % 2 == 1 ? values[m] : 0.5 * (values[m - 1] + values[m]);
-    }
 }

@@ -1,3 +1,4 @@
+using NormalFormFit.Numerics;
 namespace NormalFormFit.Ingest;
 
 /// <summary>
@@ -88,13 +89,13 @@ public static class RobustEllipseFit
         }
 
         var v = values.ToArray();
-        var med = Median(v);
+        var med = SampleStatistics.MedianInPlace(v);
         for (var i = 0; i < v.Length; i++)
         {
             v[i] = Math.Abs(v[i] - med);
         }
 
-        return 1.4826 * Median(v);
+        return 1.4826 * SampleStatistics.MedianInPlace(v);
     }
 
     /// <summary>At most 16 385 evenly spread values: the scale of a long record from a fixed-size sample (O(n)).</summary>
@@ -115,10 +116,4 @@ public static class RobustEllipseFit
         return s;
     }
 
-    private static double Median(double[] v)
-    {
-        Array.Sort(v);
-        var m = v.Length / 2;
-        return v.Length % 2 == 1 ? v[m] : 0.5 * (v[m - 1] + v[m]);
-    }
 }

@@ -255,6 +255,15 @@ public static class RunReader
                 {
                     return Loaded.Fail<RunRecording>(BadNumber(reader, qualityCol, name, "quality", decimalComma));
                 }
+                else if (q > 1 && options.MinQuality <= 1)
+                {
+                    // A score on another scale (percent, 0–255) against a threshold for scores from 0 to 1 would keep every
+                    // row: refused, never read silently.
+                    return Loaded.Fail<RunRecording>(new Diagnostic(Severity.Error, "quality-scale",
+                        string.Create(CultureInfo.InvariantCulture,
+                            $"quality column '{header[qualityCol]}' holds {q:G} here, above 1: it is not a score from 0 to 1, which the threshold {options.MinQuality:G} is for; pass --min-quality with a threshold on the column's own scale (e.g. 50 for a score in percent), or --quality-column none to use every row"),
+                        name, reader.LineNumber, reader.ColumnOf(qualityCol)));
+                }
                 else
                 {
                     dropLow = !(q >= options.MinQuality);

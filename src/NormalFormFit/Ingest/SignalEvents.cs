@@ -1,3 +1,4 @@
+using NormalFormFit.Numerics;
 using System.Globalization;
 
 namespace NormalFormFit.Ingest;
@@ -123,7 +124,7 @@ public static class SignalEvents
                 signal.File));
         }
 
-        var baseline = Median(v);
+        var baseline = SampleStatistics.Median(v);
         var noise = NoiseSd(v, signal.SegmentStarts);
         noise = Math.Max(noise, 1e-9 * (max - min));
         if (Clipped(v, max, baseline, noise) is { } top)
@@ -163,7 +164,7 @@ public static class SignalEvents
 
         var crossings = Crossings(t, v, signal.SegmentStarts, threshold, hysteresis);
         var widths = crossings.Where(c => c.Samples >= MinimumWidthSamples).Select(c => c.Duration).ToArray();
-        var refractory = options.RefractoryTime ?? (widths.Length > 0 ? Median(widths) : 0);
+        var refractory = options.RefractoryTime ?? (widths.Length > 0 ? SampleStatistics.Median(widths) : 0);
         var times = new List<double>();
         var segments = new List<int>();
         int glitches = 0, early = 0, lastSegment = -1;
@@ -387,13 +388,13 @@ public static class SignalEvents
 
         var low = sorted[..split];
         var high = sorted[split..];
-        var highMedian = Median(high);
-        if (low.Length >= 2 && high.Length >= 2 && highMedian - Median(low) > ModeSeparation * (RobustSpread(low) + RobustSpread(high)))
+        var highMedian = SampleStatistics.Median(high);
+        if (low.Length >= 2 && high.Length >= 2 && highMedian - SampleStatistics.Median(low) > ModeSeparation * (RobustSpread(low) + RobustSpread(high)))
         {
             return highMedian;
         }
 
-        var median = Median(sorted);
+        var median = SampleStatistics.Median(sorted);
         return median - clear > ModeSeparation * RobustSpread(sorted) ? median : double.NaN;
     }
 
@@ -405,8 +406,8 @@ public static class SignalEvents
             return 0;
         }
 
-        var m = Median(values);
-        return 1.4826 * Median([.. values.Select(x => Math.Abs(x - m))]);
+        var m = SampleStatistics.Median(values);
+        return 1.4826 * SampleStatistics.Median([.. values.Select(x => Math.Abs(x - m))]);
     }
 
     /// <summary>Robust σ of white noise from the first differences within segments: 1.4826·MAD(Δv)/√2.</summary>
@@ -429,20 +430,13 @@ public static class SignalEvents
         }
 
         var diffs = d.ToArray();
-        var m = Median(diffs);
+        var m = SampleStatistics.Median(diffs);
         for (var i = 0; i < diffs.Length; i++)
         {
             diffs[i] = Math.Abs(diffs[i] - m);
         }
 
-        return 1.4826 * Median(diffs) / Math.Sqrt(2);
+        return 1.4826 * SampleStatistics.Median(diffs) / Math.Sqrt(2);
     }
 
-    private static double Median(double[] values)
-    {
-        var copy = (double[])values.Clone();
-        Array.Sort(copy);
-        var h = copy.Length / 2;
-        return copy.Length % 2 == 1 ? copy[h] : 0.5 * (copy[h - 1] + copy[h]);
-    }
 }

@@ -44,4 +44,24 @@ internal static class SampleStatistics
     /// </summary>
     public static double StandardDeviationFromSums(double sum, double sumOfSquares, int count) =>
         count >= 2 ? Math.Sqrt(Math.Max(0, (sumOfSquares - (sum * sum / count)) / (count - 1))) : double.NaN;
+
+    /// <summary>The median (middle value, or mean of the two middle values); NaN when empty. Leaves the values as they are. O(n log n).</summary>
+    public static double Median(ReadOnlySpan<double> xs)
+    {
+        var copy = xs.ToArray();
+        return MedianInPlace(copy);
+    }
+
+    /// <summary>The median, sorting <paramref name="xs"/> in place; NaN when empty.</summary>
+    public static double MedianInPlace(Span<double> xs)
+    {
+        if (xs.IsEmpty)
+        {
+            return double.NaN;
+        }
+
+        xs.Sort();
+        var m = xs.Length / 2;
+        return xs.Length % 2 == 1 ? xs[m] : 0.5 * (xs[m - 1] + xs[m]);
+    }
 }

@@ -152,7 +152,12 @@ public class TrackerAcceptanceTests
     // Fixed cases, not FsCheck's random draws: a property run with a new seed each time made CI flaky. The case
     // (11, 7, 53) is the counterexample FsCheck found when passages inside bridged gaps were timed on the chord (the
     // period route moved by about three standard errors); the cases from seed 12 on were added afterwards, untuned.
+    // The case (1, 0, 4) is the counterexample FsCheck found when the bottleneck fit weighted each sample by the time to
+    // its neighbours: the samples at the edges of a burst of lost frames carried the burst's length as weight, and the
+    // bottleneck route moved by about three standard errors (6.00048 V untroubled, 5.9967 ± 0.0013 V troubled). Since the
+    // weights are capped at the median step, 40 draws of (seed, blank, glitch) moved neither route beyond its interval.
     [Theory]
+    [InlineData(1, 0, 4)]
     [InlineData(1, 5, 4)]
     [InlineData(2, 10, 8)]
     [InlineData(3, 0, 8)]
@@ -175,20 +180,6 @@ public class TrackerAcceptanceTests
     public void RandomBlankingAndLowQualityGlitches_DrawnByFsCheck_DoNotMoveTheOnsetBeyondItsInterval(PositiveInt seed, byte blankPercent, byte glitchPercent)
     {
         Assert.All(Moves(seed.Get % 1000, blankPercent, glitchPercent), m => Assert.InRange(m.Reference, m.Low, m.High));
-    }
-
-    [Fact]
-    public void BottleneckRoute_WithDroppedFramesAndFewGlitches_MovesBeyondItsInterval_AsMeasured()
-    {
-        // Known gap, asserted as measured: FsCheck (generator state (777,13), 40 draws) shrank a counterexample to seed 1,
-        // no blank rows, 4 % low-quality glitches (plus this test's 2 % dropped frames and two bursts). The bottleneck
-        // route moves from 6.00048 V (untroubled) to 5.9967 ± 0.0013 V, about three of its standard errors: the runs at
-        // 6.12 V and 6.24 V get a 1–2 % larger a from the same motion with a few percent fewer frames. The troubled
-        // interval still covers the true 6 V. When the bottleneck fit is made stable against missing frames near the
-        // bottleneck, this case fails here: move it into the theory above.
-        var moves = Moves(1, 0, 4);
-        Assert.False(moves[0].Reference >= moves[0].Low && moves[0].Reference <= moves[0].High, "the bottleneck route now covers: move this case into the theory above");
-        Assert.InRange(moves[1].Reference, moves[1].Low, moves[1].High);
     }
 
     private static List<(double Reference, double Low, double High)> Moves(int seed, byte blankPercent, byte glitchPercent)

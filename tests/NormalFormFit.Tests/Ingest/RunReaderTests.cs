@@ -54,6 +54,7 @@ public class RunReaderTests
     [InlineData("t,theta\n1,0.1\n0.5,0.2\n", "time-not-increasing", 3)]
     [InlineData("t,theta\n0,0.1\n1\n", "wrong-field-count", 3)]
     [InlineData("time,voltage\n0,0.1\n", "missing-column", 1)]
+    [InlineData("t,theta,score\n0,0.1,0.9\n1,0.2,87\n", "quality-scale", 3)]
     public void Read_BadContent_GivesOneErrorWithLine(string text, string code, int? line)
     {
         var r = ReadText(text);
