@@ -41,6 +41,9 @@ internal static class ReportNumbers
         return "[" + B(ci.Low) + ", " + B(ci.High) + "]";
     }
 
-    /// <summary>Decimals that show the second significant digit of <paramref name="se"/>.</summary>
-    private static int Decimals(double se) => Math.Clamp(1 - (int)Math.Floor(Math.Log10(se)), 0, 12);
+    /// <summary>A value rounded as <see cref="WithError"/> rounds it, without the error.</summary>
+    public static string Rounded(double value, double se) =>
+        !double.IsFinite(value) ? "–" : se > 0 && double.IsFinite(se) ? value.ToString("F" + Decimals(se).ToString(Inv), Inv) : G(value);
+
+    private static int Decimals(double se) => NormalFormFit.Numerics.ErrorDigits.Decimals(se);
 }

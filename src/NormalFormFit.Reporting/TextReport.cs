@@ -36,7 +36,7 @@ public static class TextReport
             : "  agreement:                 not available");
         if (report.Scaling is { } s)
         {
-            sb.AppendLine(string.Create(Inv, $"  scaling T ∝ (μ−μc)^−β:     β = {s.Exponent.Value:F3}  [{s.Ci95.Low:F3}, {s.Ci95.High:F3}]"));
+            sb.AppendLine(string.Create(Inv, $"  scaling T ∝ (μ−μc)^−β:     β = {ReportNumbers.Rounded(s.Exponent.Value, Math.Min(s.Exponent.StandardError, 0.01))}  {ReportNumbers.Interval(s.Ci95, Math.Min(s.Exponent.StandardError, 0.01))}"));
             sb.AppendLine($"  kind of onset:             {WireNames.Of(report.Verdict.Kind)}");
             sb.AppendLine($"                             {report.Verdict.Evidence}");
         }
@@ -124,11 +124,13 @@ public static class TextReport
             foreach (var r in signals)
             {
                 var ev = r.Events!;
+                var su = ColumnNames.SplitParameterName(ev.Column).Unit is { } signalUnit ? " " + signalUnit : string.Empty;
+                var eu = report.TimeUnit is { } timeUnit ? " " + timeUnit : string.Empty;
                 sb.AppendLine(double.IsFinite(ev.Threshold)
                     ? string.Create(Inv,
-                        $"  {G(r.Param, 6)}: {ev.Count} events in '{ev.Column}', threshold {ev.Threshold:G5} ({(ev.ThresholdGiven ? "given" : "from the signal")}), hysteresis {ev.Hysteresis:G4}, refractory {ev.RefractoryTime:G4}{(ev.Glitches + ev.WithinRefractory > 0 ? $"; {ev.Glitches} glitch(es), {ev.WithinRefractory} early crossing(s) left out" : string.Empty)}")
+                        $"  {G(r.Param, 6)}: {ev.Count} events in '{ev.Column}', threshold {ev.Threshold:G5}{su} ({(ev.ThresholdGiven ? "given" : "from the signal")}), hysteresis {ev.Hysteresis:G4}{su}, refractory {ev.RefractoryTime:G4}{eu}{(ev.Glitches + ev.WithinRefractory > 0 ? $"; {ev.Glitches} glitch(es), {ev.WithinRefractory} early crossing(s) left out" : string.Empty)}")
                     : string.Create(Inv,
-                        $"  {G(r.Param, 6)}: no events in '{ev.Column}': nothing stands {2 * SignalEvents.ClearOfNoise:G} noise SDs above its median {ev.Baseline:G5} (silent, does not turn)"));
+                        $"  {G(r.Param, 6)}: no events in '{ev.Column}': nothing stands {2 * SignalEvents.ClearOfNoise:G} noise SDs above its median {ev.Baseline:G5}{su} (silent, does not turn)"));
             }
         }
 

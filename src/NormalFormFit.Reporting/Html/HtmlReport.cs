@@ -410,7 +410,7 @@ public static partial class HtmlReport
         "protophase, which leaves onset and periods unchanged. The orbit figure shows the samples, the fitted orbit and the rejected points.");
 
     private static readonly (string Term, string Text) EventNote = ("Event times", "For runs recorded as event times (one event per " +
-        "revolution) there is no phase between events: no smoothing, field or bottleneck fit ran on them, and they enter the period " +
+        "revolution), and for single signals whose events nffit detects, there is no phase between events: no smoothing, field or bottleneck fit ran on them, and they enter the period " +
         "route only, through the mean interval between events.");
 
     private const string PeriodsWithoutBottleneck = "The measured period is the mean time between crossings of one phase (or between " +

@@ -75,6 +75,15 @@ public static class OnsetAnalysis
         }
 
         var fromA = TrendFit.Root(OnsetRoute.Bottleneck, aPoints);
+        if (aPoints.Count == 0 && runs.Any(r => r.Flags.Contains(RunFlag.PeriodsOnly)))
+        {
+            // Not a shortage of runs but a kind of data: events carry no phase between them. Said once, as a note.
+            fromA = fromA with
+            {
+                Diagnostics = [new Diagnostic(Severity.Info, "bottleneck-not-available",
+                    "event times carry periods only: the bottleneck route is not available; the onset comes from the period route")],
+            };
+        }
         var fromT = PeriodRoute.Estimate(tPoints);
 
         fromT = WithRunsBelowOnset(runs, fromT, tPoints, diags);
@@ -123,12 +132,6 @@ public static class OnsetAnalysis
                     next.Add(s);
                 }
             }
-        }
-
-        if (aPoints.Count == 0 && runs.Any(r => r.Flags.Contains(RunFlag.PeriodsOnly)))
-        {
-            diags.Add(new Diagnostic(Severity.Info, "bottleneck-not-available",
-                "event times carry periods only: the bottleneck route is not available; the onset comes from the period route"));
         }
 
         diags.AddRange(fromA.Diagnostics);

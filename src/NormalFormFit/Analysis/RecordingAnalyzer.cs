@@ -70,12 +70,14 @@ public static class RecordingAnalyzer
 
         var s = found.Summary;
         var ic = CultureInfo.InvariantCulture;
+        var su = ColumnNames.SplitParameterName(s.Column).Unit is { } signalUnit ? " " + signalUnit : string.Empty;
+        var tu = signal.TimeUnit is { } timeUnit ? " " + timeUnit : string.Empty;
         pre.Add(double.IsFinite(s.Threshold)
             ? new Diagnostic(Severity.Info, "signal-events", string.Create(ic,
-                $"{s.Count} event(s) in column '{s.Column}': upward crossings of {s.Threshold:G5} ({(s.ThresholdGiven ? "given" : $"halfway from the baseline {s.Baseline:G5} to the tip level {s.TipLevel:G5}")}), hysteresis {s.Hysteresis:G4}, refractory time {s.RefractoryTime:G4}; {s.Glitches} glitch(es) and {s.WithinRefractory} crossing(s) within the refractory time left out"),
+                $"{s.Count} event(s) in column '{s.Column}': upward crossings of {s.Threshold:G5}{su} ({(s.ThresholdGiven ? "given" : $"halfway from the baseline {s.Baseline:G5}{su} to the tip level {s.TipLevel:G5}{su}")}), hysteresis {s.Hysteresis:G4}{su}, refractory time {s.RefractoryTime:G4}{tu}; {s.Glitches} glitch(es) and {s.WithinRefractory} crossing(s) within the refractory time left out"),
                 file)
             : new Diagnostic(Severity.Info, "signal-silent", string.Create(ic,
-                $"column '{s.Column}' has no excursions of one height standing {2 * SignalEvents.ClearOfNoise:G} noise standard deviations ({2 * SignalEvents.ClearOfNoise * s.NoiseSd:G3}) above its median {s.Baseline:G5}: no events, a run that does not turn; give --event-threshold if the events are smaller"),
+                $"column '{s.Column}' has no excursions of one height standing {2 * SignalEvents.ClearOfNoise:G} noise standard deviations ({2 * SignalEvents.ClearOfNoise * s.NoiseSd:G3}{su}) above its median {s.Baseline:G5}{su}: no events, a run that does not turn; give --event-threshold if the events are smaller"),
                 file));
         var run = EventRunAnalyzer.Analyze(found.Events, param, file, label, pre);
         return new Loaded<RunResult>(run with { InputKind = RecordingKind.Signal, Events = s, Dropped = signal.Dropped, Samples = signal.Count, Duration = signal.Time[^1] - signal.Time[0] }, []);

@@ -1,5 +1,6 @@
 using System.Globalization;
 using NormalFormFit.Onset;
+using NormalFormFit.Numerics;
 
 namespace NormalFormFit.Scaling;
 
@@ -59,7 +60,8 @@ public static class OnsetKindDecision
     {
         var beta = scaling.Exponent;
         var ci = scaling.Ci95;
-        var text = string.Create(Inv, $"β = {beta.Value:F3} (95% interval {ci.Low:F3} to {ci.High:F3}) from {scaling.Runs} runs; ");
+        var f = ErrorDigits.Format(beta.StandardError, atLeast: 3);
+        var text = string.Create(Inv, $"β = {beta.Value.ToString(f, Inv)} (95% interval {ci.Low.ToString(f, Inv)} to {ci.High.ToString(f, Inv)}) from {scaling.Runs} runs; ");
         text += speed.ReachesZero
             ? string.Create(Inv, $"the minimum speed a extrapolates to zero at μ = {speed.Onset:G5}; ")
             : speed.PeriodsOnly ? string.Empty
