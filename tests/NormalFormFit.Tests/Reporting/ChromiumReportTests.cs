@@ -71,6 +71,18 @@ public sealed class ChromiumFactAttribute : FactAttribute
     }
 }
 
+/// <summary>A theory that runs when Chromium is installed; skips only outside CI, like <see cref="ChromiumFactAttribute"/>.</summary>
+public sealed class ChromiumTheoryAttribute : TheoryAttribute
+{
+    public ChromiumTheoryAttribute()
+    {
+        if (Chromium.Path is null && string.IsNullOrEmpty(Environment.GetEnvironmentVariable("CI")))
+        {
+            Skip = "chromium is not installed (run .ci/install-browser); under CI=true this test fails instead of skipping";
+        }
+    }
+}
+
 [Collection(DemoFolderGroup.Name)]
 public class ChromiumReportTests(DemoFolder demo)
 {
