@@ -57,6 +57,29 @@ internal static class Chromium
             Directory.Delete(profile, recursive: true);
         }
     }
+
+    /// <summary>Share of dark pixels, distinct colours, and whether the bottleneck-route blue appears (every other pixel sampled).</summary>
+    public static (double Dark, int Colours, bool Blue) Ink(SKBitmap bitmap)
+    {
+        long dark = 0, total = 0;
+        var colours = new HashSet<uint>();
+        var blue = false;
+        for (var y = 0; y < bitmap.Height; y += 2)
+        {
+            for (var x = 0; x < bitmap.Width; x += 2)
+            {
+                var c = bitmap.GetPixel(x, y);
+                total++;
+                dark += c.Red + c.Green + c.Blue < 3 * 200 ? 1 : 0;
+                colours.Add((uint)c);
+
+                // Within 24 levels per channel of FigurePalette.Bottleneck (#1F5AA6): antialiasing shifts a few levels.
+                blue |= Math.Abs(c.Red - 0x1F) < 24 && Math.Abs(c.Green - 0x5A) < 24 && Math.Abs(c.Blue - 0xA6) < 24;
+            }
+        }
+
+        return (dark / (double)total, colours.Count, blue);
+    }
 }
 
 /// <summary>Runs when Chromium is installed; skips only outside CI (under CI=true a missing browser fails).</summary>
@@ -100,7 +123,7 @@ public class ChromiumReportTests(DemoFolder demo)
 
         // Not blank: text, tables and figures darken a few percent of the page and bring the palette's colours
         // (common practice, no source: a blank or error page is one colour, a text-only page has no blue).
-        var (dark, colours, blue) = Ink(bitmap);
+        var (dark, colours, blue) = Chromium.Ink(bitmap);
         Assert.True(dark > 0.02, $"only {dark:P1} of the screenshot is ink");
         Assert.True(colours > 50, $"only {colours} distinct colours in the screenshot");
         Assert.True(blue, "no pixel of the bottleneck-route blue: the figures did not render");
@@ -189,27 +212,5 @@ public class ChromiumReportTests(DemoFolder demo)
         }
 
         return (differ, ink);
-    }
-
-    private static (double Dark, int Colours, bool Blue) Ink(SKBitmap bitmap)
-    {
-        long dark = 0, total = 0;
-        var colours = new HashSet<uint>();
-        var blue = false;
-        for (var y = 0; y < bitmap.Height; y += 2)
-        {
-            for (var x = 0; x < bitmap.Width; x += 2)
-            {
-                var c = bitmap.GetPixel(x, y);
-                total++;
-                dark += c.Red + c.Green + c.Blue < 3 * 200 ? 1 : 0;
-                colours.Add((uint)c);
-
-                // Within 24 levels per channel of FigurePalette.Bottleneck (#1F5AA6): antialiasing shifts a few levels.
-                blue |= Math.Abs(c.Red - 0x1F) < 24 && Math.Abs(c.Green - 0x5A) < 24 && Math.Abs(c.Blue - 0xA6) < 24;
-            }
-        }
-
-        return (dark / (double)total, colours.Count, blue);
     }
 }

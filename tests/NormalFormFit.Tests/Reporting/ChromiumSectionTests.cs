@@ -72,20 +72,8 @@ public class ChromiumSectionTests(ChromiumSectionTests.TrackerReportFolder repor
         var console = Chromium.Open(page, shot, 1200, 1400);
         Assert.Empty(console);
         using var bitmap = SKBitmap.Decode(shot);
-        long ink = 0, total = 0;
-        var colours = new HashSet<uint>();
-        for (var y = 0; y < bitmap.Height; y += 2)
-        {
-            for (var x = 0; x < bitmap.Width; x += 2)
-            {
-                var c = bitmap.GetPixel(x, y);
-                total++;
-                ink += c.Red + c.Green + c.Blue < 3 * 200 ? 1 : 0;
-                colours.Add((uint)c);
-            }
-        }
-
-        return (ink / (double)total, colours.Count);
+        var (dark, colours, _) = Chromium.Ink(bitmap);
+        return (dark, colours);
     }
 
     private static string RepoRoot()
