@@ -22,8 +22,8 @@ internal static partial class ServiceHost
     /// <summary>Policy of the upload page and every other answer: only this origin, no inline script or style.</summary>
     public const string PagePolicy = "default-src 'self'; frame-ancestors 'none'; form-action 'self'; base-uri 'none'";
 
-    /// <summary>Policy of a report page: its inline style (the report is one file), no script at all.</summary>
-    public const string ReportPolicy = "default-src 'self'; style-src 'self' 'unsafe-inline'; img-src 'self' data:; script-src 'none'; frame-ancestors 'none'; base-uri 'none'";
+    /// <summary>Policy of a report page: its inline style and the figures' embedded fonts (the report is one file), no script at all.</summary>
+    public const string ReportPolicy = "default-src 'self'; style-src 'self' 'unsafe-inline'; img-src 'self' data:; font-src 'self' data:; script-src 'none'; frame-ancestors 'none'; base-uri 'none'";
 
     /// <summary>Cookie that carries the access token for the pages a browser opens after it sent the token once.</summary>
     public const string AccessCookie = "nffit_access";
@@ -81,6 +81,11 @@ internal static partial class ServiceHost
         app.MapGet("/", ctx => Page(ctx, "index.html", "text/html; charset=utf-8"));
         app.MapGet("/app.js", ctx => Page(ctx, "app.js", "text/javascript; charset=utf-8"));
         app.MapGet("/app.css", ctx => Page(ctx, "app.css", "text/css; charset=utf-8"));
+        app.MapGet("/favicon.ico", ctx =>
+        {
+            ctx.Response.StatusCode = StatusCodes.Status204NoContent; // No icon; a 404 would be logged by browsers.
+            return Task.CompletedTask;
+        });
         app.MapGet("/api/options", ctx => Options(ctx, readingOptions));
         app.MapPost("/api/analyses", ctx => Submit(ctx, settings, store, queue, readingOptions));
         app.MapGet("/api/analyses/{id}", (HttpContext ctx, string id) => Status(ctx, settings, store, id));
@@ -101,7 +106,7 @@ internal static partial class ServiceHost
     private static bool Allowed(HttpContext ctx, string token)
     {
         var path = ctx.Request.Path.Value ?? "/";
-        if (path is "/" or "/app.js" or "/app.css")
+        if (path is "/" or "/app.js" or "/app.css" or "/favicon.ico")
         {
             return true; // The page itself holds no data; it asks for the token.
         }
