@@ -1,4 +1,5 @@
 using System.IO.Compression;
+using System.Net;
 using System.Security.Cryptography;
 using System.Text;
 using System.Text.Json;
@@ -59,6 +60,13 @@ internal static partial class ServiceHost
             ctx.Response.Headers.ContentSecurityPolicy = PagePolicy;
             try
             {
+                if (IPAddress.IsLoopback(settings.Bind) && !LoopbackHost(ctx.Request.Host.Host))
+                {
+                    // A page elsewhere that points its own host name at 127.0.0.1 (DNS rebinding) must not reach the service.
+                    await Error(ctx, StatusCodes.Status400BadRequest, "bad_host", "this service listens on loopback only: open it as http://127.0.0.1:PORT/ or http://localhost:PORT/").ConfigureAwait(false);
+                    return;
+                }
+
                 if (settings.Token is { } token && !Allowed(ctx, token))
                 {
                     ctx.Response.Headers.WWWAuthenticate = "Bearer";
@@ -101,6 +109,10 @@ internal static partial class ServiceHost
 
     [GeneratedRegex("^[0-9a-f]{32}$", RegexOptions.CultureInvariant)]
     private static partial Regex IdPattern();
+
+    /// <summary>Whether a Host header names this machine's loopback interface.</summary>
+    private static bool LoopbackHost(string host) =>
+        host.Equals("localhost", StringComparison.OrdinalIgnoreCase) || (IPAddress.TryParse(host.Trim('[', ']'), out var ip) && IPAddress.IsLoopback(ip));
 
     /// <summary>The token from a Bearer header or the cookie a Bearer request set (fixed-time comparison).</summary>
     private static bool Allowed(HttpContext ctx, string token)
@@ -154,6 +166,15 @@ internal static partial class ServiceHost
 
     private static async Task Submit(HttpContext ctx, ServiceSettings settings, JobStore store, JobQueue queue, IReadOnlyDictionary<string, bool> readingOptions)
     {
+        // A form on another site may post here from a visitor's browser (no preflight for multipart forms); browsers
+        // name the page's origin, which must be this service.
+        if (ctx.Request.Headers.Origin.ToString() is { Length: > 0 } origin
+            && (!Uri.TryCreate(origin, UriKind.Absolute, out var from) || !string.Equals(from.Authority, ctx.Request.Host.Value, StringComparison.OrdinalIgnoreCase)))
+        {
+            await Error(ctx, StatusCodes.Status403Forbidden, "cross_origin", "uploads are taken from this service's own page only").ConfigureAwait(false);
+            return;
+        }
+
         if (!queue.TryReserve())
         {
             ctx.Response.Headers.RetryAfter = ServiceSettings.RetryAfterSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture);

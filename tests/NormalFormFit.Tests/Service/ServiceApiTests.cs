@@ -361,6 +361,39 @@ public class ServiceApiTests(SimulatedSweep sweep)
         Assert.Equal(HttpStatusCode.OK, (await service.Client.GetAsync("/")).StatusCode);
     }
 
+    [Theory]
+    [InlineData("attacker.example", HttpStatusCode.BadRequest)]
+    [InlineData("localhost.attacker.example", HttpStatusCode.BadRequest)]
+    [InlineData("localhost", HttpStatusCode.OK)]
+    [InlineData("127.0.0.1", HttpStatusCode.OK)]
+    [InlineData("[::1]", HttpStatusCode.OK)]
+    public async Task OnLoopback_OnlyLoopbackHostNamesAreServed_AgainstDnsRebinding(string host, HttpStatusCode expected)
+    {
+        await using var service = await InProcessService.Start();
+        using var request = new HttpRequestMessage(HttpMethod.Get, "/api/options");
+        request.Headers.Host = host;
+
+        var response = await service.Client.SendAsync(request);
+
+        Assert.Equal(expected, response.StatusCode);
+    }
+
+    [Fact]
+    public async Task UploadPostedByAPageOfAnotherOrigin_Is403_AndFromItsOwnPageIsAccepted()
+    {
+        await using var service = await InProcessService.Start(s => s with { Workers = 0 });
+        using var foreign = new HttpRequestMessage(HttpMethod.Post, "/api/analyses") { Content = Multipart.Of(sweep).Content() };
+        foreign.Headers.Add("Origin", "http://attacker.example");
+        using var own = new HttpRequestMessage(HttpMethod.Post, "/api/analyses") { Content = Multipart.Of(sweep).Content() };
+        own.Headers.Add("Origin", "http://localhost");
+
+        var refused = await service.Client.SendAsync(foreign);
+        var accepted = await service.Client.SendAsync(own);
+
+        Assert.Equal(HttpStatusCode.Forbidden, refused.StatusCode);
+        Assert.Equal(HttpStatusCode.Accepted, accepted.StatusCode);
+    }
+
     /// <summary>A request body that starts with a multipart head and then repeats one line for ever, counting what was read.</summary>
     private sealed class EndlessBody(byte[] head, byte[] line) : Stream
     {

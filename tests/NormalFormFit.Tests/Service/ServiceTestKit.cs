@@ -38,13 +38,7 @@ public sealed class SimulatedSweep : IDisposable
 
     public IEnumerable<string> RunFiles => Directory.GetFiles(Data, "run-*.csv").Order(StringComparer.Ordinal);
 
-    public static (int Code, string Out, string Err) Cli(params string[] args)
-    {
-        using var o = new StringWriter();
-        using var e = new StringWriter();
-        var code = NffitApp.Run(args, o, e);
-        return (code, o.ToString(), e.ToString());
-    }
+    public static (int Code, string Out, string Err) Cli(params string[] args) => Tests.Cli.CliTestHost.Run(args);
 
     public void Dispose() => Directory.Delete(Root, recursive: true);
 }
