@@ -16,22 +16,35 @@ internal static class NffitApp
         return RunSafely(args, stdout, safe);
     }
 
+    /// <summary>
+    /// The usage errors the command line finds in <paramref name="args"/> without running anything: the service
+    /// checks the reading options of an upload with the same parser before it queues the job.
+    /// </summary>
+    public static IReadOnlyList<string> UsageErrors(string[] args) =>
+        Parse(args, TextWriter.Null, TextWriter.Null).Errors.Select(e => e.Message).ToList();
+
+    private static ParseResult Parse(string[] args, TextWriter stdout, TextWriter stderr)
+    {
+        var root = new RootCommand("nffit — saddle-node-on-circle onset analysis from phase recordings")
+        {
+            AnalyzeCommand.Create(stdout, stderr),
+            SimulateCommand.Create(stdout, stderr),
+            CompareCommand.Create(stdout, stderr),
+            CombineCommand.Create(stdout, stderr),
+            Service.ServeCommand.Create(stdout, stderr),
+        };
+        ToolVersion.Install(root, stdout);
+
+        // No response files: '@m.csv' is a file name, not a file of more arguments.
+        return root.Parse(args, new ParserConfiguration { ResponseFileTokenReplacer = null });
+    }
+
     private static int RunSafely(string[] args, TextWriter stdout, TextWriter stderr)
     {
         var verbose = args.Contains("--verbose");
         try
         {
-            var root = new RootCommand("nffit — saddle-node-on-circle onset analysis from phase recordings")
-            {
-                AnalyzeCommand.Create(stdout, stderr),
-                SimulateCommand.Create(stdout, stderr),
-                CompareCommand.Create(stdout, stderr),
-                CombineCommand.Create(stdout, stderr),
-            };
-            ToolVersion.Install(root, stdout);
-
-            // No response files: '@m.csv' is a file name, not a file of more arguments.
-            var parsed = root.Parse(args, new ParserConfiguration { ResponseFileTokenReplacer = null });
+            var parsed = Parse(args, stdout, stderr);
             if (parsed.Errors.Count > 0)
             {
                 foreach (var e in parsed.Errors)

@@ -41,11 +41,20 @@ internal sealed class ReadingOptions
     /// <summary>Adds every reading option to <paramref name="command"/>.</summary>
     public void AddTo(Command command)
     {
-        foreach (var option in new Option[] { timeCol, phaseCol, phaseUnit, timeUnit, paramUnit, paramCol, qualityCol, minQuality, decimalComma, kind, xCol, yCol, eventCol, signalCol, threshold, hysteresis, refractory, delimiter, yDown, unwrapped })
+        foreach (var option in All)
         {
             command.Options.Add(option);
         }
     }
+
+    /// <summary>
+    /// Every reading option by its name without the leading dashes (e.g. <c>time-column</c>), and whether it is a
+    /// switch that takes no value: the service (docs/service.md) takes them as form fields of the same names.
+    /// </summary>
+    public IReadOnlyDictionary<string, bool> Names() =>
+        All.ToDictionary(o => o.Name.TrimStart('-'), o => o is Option<bool>, StringComparer.Ordinal);
+
+    private Option[] All => [timeCol, phaseCol, phaseUnit, timeUnit, paramUnit, paramCol, qualityCol, minQuality, decimalComma, kind, xCol, yCol, eventCol, signalCol, threshold, hysteresis, refractory, delimiter, yDown, unwrapped];
 
     /// <summary>A usage error (exit code) when a column option is empty or not a position from 1; else null.</summary>
     public int? Check(ParseResult pr, TextWriter stderr) =>
