@@ -133,6 +133,7 @@ public class ScalingOffsetTests(ITestOutputHelper output)
         var cal = Reference().GetProperty("calibration");
         Assert.Equal(cal.GetProperty("repeats").GetInt32(), z.Count);
         Assert.InRange(covered, cal.GetProperty("low").GetInt32(), cal.GetProperty("high").GetInt32());
+        output.WriteLine(CalibrationChecks.AssertBalancedAndNotTooWide(z));
     }
 
     /// <summary>
