@@ -73,7 +73,8 @@ public static class WireNames
 
     private static readonly Names<ScalingForm> Forms = new(
         (ScalingForm.PowerLaw, "power-law"),
-        (ScalingForm.PowerLawWithOffset, "power-law-with-offset"));
+        (ScalingForm.PowerLawWithOffset, "power-law-with-offset"),
+        (ScalingForm.PowerLawOfQuadraticRate, "power-law-of-quadratic-rate"));
 
     /// <summary>The flag's name (<c>runs[].flags</c>; also the code of the diagnostic that explains it).</summary>
     public static string Of(RunFlag flag) => Flags.Name(flag);

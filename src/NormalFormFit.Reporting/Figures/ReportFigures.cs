@@ -418,7 +418,7 @@ public static partial class ReportFigures
         {
             var fit = plot.Add.ScatterLine(gx, gx.Select(x => Math.Log10(s.PeriodAt(s.Onset.Value + Math.Pow(10, x)))).ToArray(), FigurePalette.Period);
             fit.LineWidth = 2;
-            fit.LegendText = string.Create(Inv, $"fitted law, β = {ReportNumbers.Rounded(s.Exponent.Value, Math.Min(s.Exponent.StandardError, 0.01))}{(s.Form == NormalFormFit.Scaling.ScalingForm.PowerLawWithOffset ? " (with offset T₀)" : s.LogModel.Count > 2 ? " (with correction terms)" : string.Empty)}");
+            fit.LegendText = string.Create(Inv, $"fitted law, β = {ReportNumbers.Rounded(s.Exponent.Value, Math.Min(s.Exponent.StandardError, 0.01))}{(s.Form == NormalFormFit.Scaling.ScalingForm.PowerLawWithOffset ? " (with offset T₀)" : s.Form == NormalFormFit.Scaling.ScalingForm.PowerLawOfQuadraticRate ? " (rate d + κd²)" : s.LogModel.Count > 2 ? " (with correction terms)" : string.Empty)}");
         }
 
         var bars = plot.Add.ErrorBar(lx, ly, ls);

@@ -17,6 +17,9 @@ public enum ScalingForm
 
     /// <summary>T = C·d^(−β) + T₀ (+ s·d), fitted on T.</summary>
     PowerLawWithOffset,
+
+    /// <summary>T = C·(d + κd²)^(−β), fitted on log T: the power law of a rate that bends to first order.</summary>
+    PowerLawOfQuadraticRate,
 }
 
 /// <summary>
@@ -57,13 +60,22 @@ public sealed record ScalingResult(Estimate Exponent, Interval Ci95, Estimate On
     /// <summary>The form with an offset, T = C·d^(−β) + T₀ (+ s·d), as [C, β, T₀(, s)] (empty for the log-T form).</summary>
     public IReadOnlyList<double> OffsetModel { get; init; } = [];
 
+    /// <summary>The form T = C·(d + κd²)^(−β) as [log C, β, κ] (empty for the other forms).</summary>
+    public IReadOnlyList<double> QuadraticRateModel { get; init; } = [];
+
     /// <summary>True when a fitted curve is recorded (<see cref="PeriodAt"/> gives numbers).</summary>
-    public bool HasCurve => LogModel.Count >= 2 || OffsetModel.Count >= 3;
+    public bool HasCurve => LogModel.Count >= 2 || OffsetModel.Count >= 3 || QuadraticRateModel.Count == 3;
 
     /// <summary>The fitted period at <paramref name="mu"/> (NaN on the wrong side of μc or without a model).</summary>
     public double PeriodAt(double mu)
     {
         var d = Math.Abs(mu - Onset.Value);
+        if (QuadraticRateModel.Count == 3)
+        {
+            var rate = d + (QuadraticRateModel[2] * d * d);
+            return d > 0 && rate > 0 ? Math.Exp(QuadraticRateModel[0] - (QuadraticRateModel[1] * Math.Log(rate))) : double.NaN;
+        }
+
         if (OffsetModel.Count >= 3)
         {
             var t = (OffsetModel[0] * Math.Pow(d, -OffsetModel[1])) + OffsetModel[2] + (OffsetModel.Count > 3 ? OffsetModel[3] * d : 0);
@@ -127,7 +139,8 @@ public static class ScalingFit
             return null;
         }
 
-        var f = candidates.MinBy(c => c.Aicc);
+        var scores = Scores(candidates);
+        var f = candidates[Enumerable.Range(0, candidates.Count).MinBy(i => scores[i])];
         var n = f.Dof + f.Parameters;
         var q = f.Dof > 0 ? StudentT.InvCDF(0, 1, f.Dof, 0.975) : double.PositiveInfinity;
         var beta = new Estimate(f.Beta, f.BetaSe);
@@ -141,6 +154,11 @@ public static class ScalingFit
             ci = avg.Ci95;
         }
 
+        if (f.Form == ScalingForm.PowerLawOfQuadraticRate)
+        {
+            return new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), 0, n) { Form = f.Form, QuadraticRateModel = f.Coefficients };
+        }
+
         return f.Form == ScalingForm.PowerLawWithOffset
             ? new ScalingResult(beta, ci, new Estimate(f.MuC, f.MuCSe), 0, n)
             {
@@ -152,12 +170,59 @@ public static class ScalingFit
     }
 
     /// <summary>β averaged over the forms (null when the average is not defined).</summary>
-    internal static Onset.AveragedEstimate? Averaged(IReadOnlyList<Solution> candidates) =>
-        Onset.ModelAverage.Average([.. candidates.Select(c =>
+    internal static Onset.AveragedEstimate? Averaged(IReadOnlyList<Solution> candidates)
+    {
+        var scores = Scores(candidates);
+        return Onset.ModelAverage.Average([.. candidates.Select((c, i) =>
         {
             var q = c.Dof > 0 ? StudentT.InvCDF(0, 1, c.Dof, 0.975) : double.NaN;
-            return new Onset.ModelCandidate($"{c.Form} +{c.Corrections}", c.Beta, c.Dof > 0 && double.IsFinite(c.BetaSe) ? c.Aicc : double.PositiveInfinity, new Interval(c.Beta - (q * c.BetaSe), c.Beta + (q * c.BetaSe)), q, c.BetaSe);
+            return new Onset.ModelCandidate($"{c.Form} +{c.Corrections}", c.Beta, c.Dof > 0 && double.IsFinite(c.BetaSe) ? scores[i] : double.PositiveInfinity, new Interval(c.Beta - (q * c.BetaSe), c.Beta + (q * c.BetaSe)), q, c.BetaSe);
         })]);
+    }
+
+    /// <summary>
+    /// A form misses its runs far beyond their errors when χ²/dof exceeds <see cref="Onset.PeriodRoute.MisfitFactor"/>
+    /// times the 0.999 quantile of χ²_dof/dof (MathNet's ChiSquared.InvCDF): the χ² goodness-of-fit test with the runs'
+    /// own errors, with room for errors from few revolutions understated by up to two (common practice, no source).
+    /// </summary>
+    internal static bool Misfits(Solution c) =>
+        c.Dof >= 1 && double.IsFinite(c.ChiSquare)
+        && c.ChiSquare / c.Dof > Onset.PeriodRoute.MisfitFactor * ChiSquared.InvCDF(c.Dof, 0.999) / c.Dof;
+
+    /// <summary>
+    /// The criterion that weighs the forms: AICc on the common likelihood of the periods; but when some forms fit the
+    /// runs within their errors and others miss them far beyond (<see cref="Misfits"/>), the missing forms are rejected
+    /// by that goodness-of-fit test (+∞) and the fitting forms are weighed among themselves, by AIC (Akaike 1974) when
+    /// AICc is undefined for one of them (n = p + 2: six runs and four parameters).
+    /// </summary>
+    /// <remarks>
+    /// Why: a truncated power law fitted to precise periods far from onset (the rotor, T = 2π/√(μ² − 1), spread over
+    /// d = 0.02–0.3) misses its runs by χ²/dof ~ 10³, and AICc, which reads the misfit as scatter, would otherwise keep
+    /// the only form with a defined AICc and an exponent biased by about 0.04 (five to seven standard errors) in every
+    /// repeat. Forms with the same number of parameters have the same AICc correction, so among them AIC weighs as
+    /// AICc would; with mixed numbers AIC penalises extra parameters less than AICc (Burnham &amp; Anderson 2002, §2.4).
+    /// </remarks>
+    internal static double[] Scores(IReadOnlyList<Solution> candidates)
+    {
+        var misfit = candidates.Select(Misfits).ToArray();
+        var reject = misfit.Any(m => m) && candidates.Where((c, i) => !misfit[i] && c.Dof >= 2).Any();
+        if (!reject)
+        {
+            return [.. candidates.Select(c => c.Aicc)];
+        }
+
+        var kept = Enumerable.Range(0, candidates.Count).Where(i => !misfit[i] && candidates[i].Dof >= 2).ToArray();
+        var useAic = kept.Any(i => !double.IsFinite(candidates[i].Aicc));
+        var scores = Enumerable.Repeat(double.PositiveInfinity, candidates.Count).ToArray();
+        foreach (var i in kept)
+        {
+            var c = candidates[i];
+            var n = c.Dof + c.Parameters;
+            scores[i] = useAic ? Numerics.InformationCriteria.Aic(c.ChiSquare, n, c.Parameters + 1) : c.Aicc;
+        }
+
+        return scores;
+    }
 
     /// <summary>
     /// Every form that could be fitted, with its AICc on the common likelihood of the periods: the log-T form with 0–2
@@ -194,6 +259,20 @@ public static class ScalingFit
             }
         }
 
+        // The power law of a rate that bends to first order, T = C·(d + κd²)^(−β), on log T as the κ forms.
+        if (QuadraticRatePowerLawFit.Fit(pts, side, edge, span) is { } qr)
+        {
+            const int p = QuadraticRateSolution.Parameters;
+            found.Add(new Solution(qr.MuC, qr.Beta, qr.BetaSe, qr.MuCSe, 0, pts.Length - p, Aicc(qr.ChiSquare, pts.Length, p))
+            {
+                Coefficients = [qr.LogC, qr.Beta, qr.Kappa],
+                Form = ScalingForm.PowerLawOfQuadraticRate,
+                Corrections = 1,
+                Parameters = p,
+                ChiSquare = qr.ChiSquare,
+            });
+        }
+
         return found;
     }
 
@@ -210,6 +289,7 @@ public static class ScalingFit
             Corrections = o.Parameters - 4,
             Parameters = o.Parameters,
             Offset = new Estimate(o.Coefficients[1], o.CoefficientSe[1]),
+            ChiSquare = o.ChiSquare,
         };
 
     /// <summary>One fitted form: μc, β and their errors, residual degrees of freedom and AICc.</summary>
@@ -226,6 +306,9 @@ public static class ScalingFit
         public ScalingForm Form { get; init; } = ScalingForm.PowerLaw;
 
         public Estimate? Offset { get; init; }
+
+        /// <summary>Weighted residual sum of squares on the form's own scale (log T or T).</summary>
+        public double ChiSquare { get; init; } = double.NaN;
     }
 
     private static Solution? FitWith(PeriodPoint[] pts, int side, double edge, double span, int corrections)
@@ -282,7 +365,7 @@ public static class ScalingFit
         var red = chi2 / dof;
         var cov = (j.TransposeThisAndMultiply(j)).Inverse() * red;
         var aicc = Aicc(chi2, n, p);
-        return new Solution(muc, coef[1], Math.Sqrt(cov[1, 1]), Math.Sqrt(cov[p - 1, p - 1]), corrections > 0 ? coef[2] : 0, dof, aicc) { Coefficients = coef, Corrections = corrections, Parameters = p };
+        return new Solution(muc, coef[1], Math.Sqrt(cov[1, 1]), Math.Sqrt(cov[p - 1, p - 1]), corrections > 0 ? coef[2] : 0, dof, aicc) { Coefficients = coef, Corrections = corrections, Parameters = p, ChiSquare = chi2 };
     }
 
     // Weighted linear least squares of log T on [1, −log d, (d)] for a given μc; returns χ².

@@ -55,5 +55,6 @@ public class BelowOnsetCalibrationTests(ITestOutputHelper output)
         output.WriteLine($"period route with resting runs: coverage {covered}/{Repeats}; resting runs used in {used} repeats; square-root law chosen in {law}; mean z {mean:F2}, sd z {Math.Sqrt(z.Sum(x => (x - mean) * (x - mean)) / (z.Count - 1)):F2}");
         Assert.True(used >= Repeats / 2, $"resting runs entered the fit in only {used} of {Repeats} repeats");
         Assert.InRange(covered / (double)Repeats, 0.90, 0.98);
+        output.WriteLine(CalibrationChecks.AssertBalancedAndNotTooWide(z));
     }
 }

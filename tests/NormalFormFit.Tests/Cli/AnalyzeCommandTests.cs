@@ -55,7 +55,7 @@ public class AnalyzeCommandTests
         }
 
         // Additive keys: the form of the scaling law and its offset T₀ (null for the log-T form).
-        Assert.Contains(root.GetProperty("scaling").GetProperty("form").GetString(), new[] { "power-law", "power-law-with-offset" });
+        Assert.Contains(root.GetProperty("scaling").GetProperty("form").GetString(), new[] { "power-law", "power-law-with-offset", "power-law-of-quadratic-rate" });
         Assert.True(root.GetProperty("scaling").TryGetProperty("offset", out _));
 
         var run = root.GetProperty("runs")[0];

@@ -112,6 +112,7 @@ public class SquareRootLawFitTests(ITestOutputHelper output)
         output.WriteLine($"side {side}: coverage {covered}/{repeats}, fitted {fitted}; mean z {mean:F2}, sd z {Math.Sqrt(z.Sum(x => (x - mean) * (x - mean)) / (z.Count - 1)):F2}");
         Assert.Equal(repeats, fitted);
         Assert.InRange(covered, cal.GetProperty("low").GetInt32(), cal.GetProperty("high").GetInt32());
+        output.WriteLine(CalibrationChecks.AssertBalancedAndNotTooWide(z));
     }
 
     [Fact]

@@ -68,7 +68,7 @@ public class WireNamesTests
         Assert.Equal(["applicable", "unconfirmed", "unreliable", "not-applicable"], Enum.GetValues<RouteStatus>().Select(WireNames.Of));
         Assert.Equal(["polynomial", "square-root-with-offset"], Enum.GetValues<OnsetLaw>().Select(WireNames.Of));
         Assert.Equal(["saddle-node", "homoclinic", "finite-period"], Enum.GetValues<PeriodLaw>().Select(WireNames.Of));
-        Assert.Equal(["power-law", "power-law-with-offset"], Enum.GetValues<ScalingForm>().Select(WireNames.Of));
+        Assert.Equal(["power-law", "power-law-with-offset", "power-law-of-quadratic-rate"], Enum.GetValues<ScalingForm>().Select(WireNames.Of));
     }
 
     [Theory]
