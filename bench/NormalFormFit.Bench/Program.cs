@@ -26,6 +26,11 @@ public static class Program
             return Smooth(args[1..]);
         }
 
+        if (args.Length > 0 && args[0] == "sweeps")
+        {
+            return Sweeps(args[1..]);
+        }
+
         if (args.Length > 0 && args[0] == "memory")
         {
             return Memory(args[1..]);
@@ -66,6 +71,41 @@ public static class Program
         // CPU time is the fair figure on a shared machine: wall time includes waiting for a core.
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"read {files.Length} file(s): {samples} samples, {bytes / 1e6:F1} MB; best of 3: {best:F2} s wall ({bytes / 1e6 / best:F0} MB/s), {bestCpu:F2} s CPU ({bytes / 1e6 / bestCpu:F0} MB/s per core)"));
+        return 0;
+    }
+
+    // `sweeps FOLDER SECONDS`: current-clamp sweeps of the class-I Morris–Lecar model (parameters of
+    // NormalFormFit.Simulation.MorrisLecar) at 20 kHz, `time_ms,Vm_mV`, one file per injected current (the knee of the
+    // steady-state I–V curve + 0.5, 1.5, 3 μA/cm²), a noise current of 1 μA/cm²·√ms and 0.3 mV of measurement noise
+    // (invented demo levels), and a manifest `file,I_app [uA/cm2]`.
+    private static int Sweeps(string[] args)
+    {
+        var folder = args[0];
+        var seconds = double.Parse(args[1], CultureInfo.InvariantCulture);
+        Directory.CreateDirectory(folder);
+        var model = NormalFormFit.Simulation.MorrisLecar.ClassOne;
+        var onset = model.RestSaddleNode().Current;
+        double[] offsets = [0.5, 1.5, 3];
+        var manifest = new System.Text.StringBuilder("file,I_app [uA/cm2]\n");
+        for (var i = 0; i < offsets.Length; i++)
+        {
+            var track = model.Sweep(onset + offsets[i], seconds * 1000, 0.05, 0, 1.0, 900 + i);
+            var noise = new Random(900 + i);
+            var name = string.Create(CultureInfo.InvariantCulture, $"sweep_{i}.csv");
+            using (var w = new StreamWriter(Path.Combine(folder, name)))
+            {
+                w.Write("time_ms,Vm_mV\n");
+                for (var k = 0; k < track.V.Length; k++)
+                {
+                    w.Write(string.Create(CultureInfo.InvariantCulture, $"{k * 0.05:F2},{track.V[k] + (0.3 * Math.Sqrt(-2 * Math.Log(1 - noise.NextDouble())) * Math.Cos(2 * Math.PI * noise.NextDouble())):F3}\n"));
+                }
+            }
+
+            manifest.Append(CultureInfo.InvariantCulture, $"{name},{onset + offsets[i]:R}\n");
+        }
+
+        File.WriteAllText(Path.Combine(folder, "manifest.csv"), manifest.ToString());
+        File.WriteAllText(Path.Combine(folder, "one.csv"), "file,I_app [uA/cm2]\nsweep_0.csv," + (onset + offsets[0]).ToString("R", CultureInfo.InvariantCulture) + "\n");
         return 0;
     }
 
