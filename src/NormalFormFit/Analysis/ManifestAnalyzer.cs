@@ -30,11 +30,19 @@ public static class InsufficientData
     /// <summary>Fewer than three usable turning runs.</summary>
     public const string TooFewRuns = "insufficient-runs";
 
-    /// <summary>Single-signal runs, none of which has an event: the signals look like noise about a level.</summary>
-    public const string NoSignalEvents = "signal-no-events";
+    /// <summary>The codes.</summary>
+    public static IReadOnlySet<string> Codes { get; } = new HashSet<string>(StringComparer.Ordinal) { TooFewRuns };
+}
 
-    /// <summary>Both codes.</summary>
-    public static IReadOnlySet<string> Codes { get; } = new HashSet<string>(StringComparer.Ordinal) { TooFewRuns, NoSignalEvents };
+/// <summary>Diagnostic codes of a set whose inputs are wrong as a whole (exit code 2, bad input).</summary>
+public static class BadSet
+{
+    /// <summary>
+    /// Single-signal runs, none of which has a population of events (three or more, enough for one period): every
+    /// signal looks like noise about a level. A silent sweep among firing sweeps is a run that does not turn; a set
+    /// with no firing sweep at all cannot be told from a wrong column or an unplugged input.
+    /// </summary>
+    public const string SignalAllNoise = "signal-all-noise";
 }
 
 /// <summary>Analysed runs before they are combined.</summary>
@@ -52,6 +60,9 @@ public sealed record RunSet(IReadOnlyList<RunResult> Runs, string? ParamUnits)
 /// <summary>Manifest → runs → report: the main job, wired from pure stages.</summary>
 public static class ManifestAnalyzer
 {
+    /// <summary>Fewest events in one signal run that make a population of events (three: two intervals, one period with an error).</summary>
+    public const int EventPopulation = 3;
+
     /// <summary>
     /// Reads the manifest and every run, analyses the runs (in parallel, results in manifest order) and combines
     /// them. Errors in any input stop the analysis and come back as diagnostics; nothing is written.
@@ -201,13 +212,16 @@ public static class ManifestAnalyzer
         var runs = set.Runs;
         var usable = OnsetAnalysis.UsableRuns(runs);
         var signals = runs.Where(r => r.Events is not null).ToList();
-        if (signals.Count > 0 && signals.All(r => r.Events!.Count == 0) && runs.All(r => !r.IsTurning))
+        if (signals.Count > 0 && signals.All(r => r.Events!.Count < EventPopulation) && runs.All(r => r.Events is not null || !r.IsTurning))
         {
             var columns = string.Join(", ", signals.Select(r => "'" + r.Events!.Column + "'").Distinct());
+            var files = signals.Select(r => r.File).ToList();
+            var named = string.Join(", ", files.Take(3)) + (files.Count > 3 ? $" and {files.Count - 3} more" : string.Empty);
+            var most = signals.Max(r => r.Events!.Count);
             return new Loaded<AnalysisReport>(null,
             [
-                new Diagnostic(Severity.Error, InsufficientData.NoSignalEvents,
-                    $"none of the {signals.Count} signal runs has an event: column {columns} shows no excursions of one height standing {2 * Ingest.SignalEvents.ClearOfNoise:G} noise standard deviations above its median in any file, like noise about a level; check that it is the signal (--signal-column), or give the level of the events with --event-threshold",
+                new Diagnostic(Severity.Error, BadSet.SignalAllNoise,
+                    $"none of the {signals.Count} signal runs ({named}) has a population of events in column {columns} (at most {most} event(s) in a file, {EventPopulation} needed for a period): no file shows excursions of one height standing {2 * Ingest.SignalEvents.ClearOfNoise:G} noise standard deviations above its median, every signal looks like noise about a level; check that the column is the recorded signal (--signal-column) and that the input was connected, or give the level of the events with --event-threshold if they are small",
                     source),
             ]);
         }
