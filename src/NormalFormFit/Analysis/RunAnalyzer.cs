@@ -198,7 +198,8 @@ public static class RunAnalyzer
     private static double[] HalfCentralDifferences(double[] x, int[] segs)
     {
         var w = new double[x.Length];
-        var cap = 1.5 * MedianStep(x, segs);
+        var typical = Trajectory.TypicalStep(x); // O(n): the median of at most 4097 evenly spread steps
+        var cap = double.IsFinite(typical) ? 1.5 * typical : double.PositiveInfinity;
         for (var k = 0; k < segs.Length; k++)
         {
             var s = segs[k];
@@ -212,21 +213,6 @@ public static class RunAnalyzer
         }
 
         return w;
-    }
-
-    private static double MedianStep(double[] x, int[] segs)
-    {
-        var steps = new List<double>(x.Length);
-        for (var k = 0; k < segs.Length; k++)
-        {
-            var e = k + 1 < segs.Length ? segs[k + 1] : x.Length;
-            for (var i = segs[k] + 1; i < e; i++)
-            {
-                steps.Add(x[i] - x[i - 1]);
-            }
-        }
-
-        return steps.Count == 0 ? double.PositiveInfinity : SampleStatistics.MedianInPlace(steps.ToArray());
     }
 
     private static Diagnostic Info(string file, string code, string message) => new(Severity.Info, code, message, file);
