@@ -1,4 +1,3 @@
-using NormalFormFit.Numerics;
 using System.Globalization;
 using NormalFormFit.Bottleneck;
 using NormalFormFit.Field;
@@ -188,12 +187,11 @@ public static class RunAnalyzer
         return [.. starts];
     }
 
-    /// <summary>Half the central difference of <paramref name="x"/> at each sample (one-sided at segment ends).</summary>
     /// <summary>
-    /// The time each sample covers: half the central difference of the times inside its segment, each side capped at
-    /// <see cref="PeriodMeasurement.GapSteps"/> median steps (the step beyond which a step counts as a bridged gap). The
-    /// time inside a bridged gap belongs to no sample: otherwise the samples at a gap's edges, whose speeds the spline
-    /// determines worst (one-sided), would carry the gap's whole length as weight. Jittered sampling keeps its weights.
+    /// The time each sample covers: half the central difference of the times inside its segment (one-sided at segment
+    /// ends), each side capped at 1.5 typical steps. The time inside a gap belongs to no sample: otherwise the samples at
+    /// a gap's edges, whose speeds the spline determines worst (one-sided), would carry the gap's whole length as weight.
+    /// Uniform and mildly jittered sampling keep their weights.
     /// </summary>
     private static double[] HalfCentralDifferences(double[] x, int[] segs)
     {
