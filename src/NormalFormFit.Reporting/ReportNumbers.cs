@@ -47,3 +47,36 @@ internal static class ReportNumbers
 
     private static int Decimals(double se) => NormalFormFit.Numerics.ErrorDigits.Decimals(se);
 }
+
+/// <summary>
+/// The suggested next runs in words shared by the text, the page and the figures: where (μ to the second significant
+/// digit of its distance from the route's onset; the optimum is flat, more digits would only look precise) and what
+/// they are expected to do to the route's reported 95% interval.
+/// </summary>
+internal static class NextRunWording
+{
+    /// <summary>The suggested μ, rounded to the second significant digit of its distance from the route's onset.</summary>
+    public static string Param(NormalFormFit.Onset.NextMeasurement m, NormalFormFit.Analysis.AnalysisReport report)
+    {
+        var route = m.Route == NormalFormFit.Onset.OnsetRoute.Bottleneck ? report.FromBottleneck : report.FromPeriod;
+        var distance = route.IsAvailable ? Math.Abs(m.Param - route.Value) : double.NaN;
+        return ReportNumbers.Rounded(m.Param, distance);
+    }
+
+    /// <summary>
+    /// The expected narrowing of the route's interval in percent: one less the ratio of the expected to the current
+    /// half-width, both in the planner's linear (delta-method) approximation, so that the ratio is not mixed with the
+    /// reported (Fieller or profile) interval's shape. NaN when either width is not finite.
+    /// </summary>
+    public static double NarrowingPercent(NormalFormFit.Onset.NextMeasurement m) =>
+        m.CurrentCi95.Width > 0 && double.IsFinite(m.CurrentCi95.Width) && double.IsFinite(m.ExpectedCi95.Width)
+            ? 100 * (1 - (m.ExpectedCi95.Width / m.CurrentCi95.Width))
+            : double.NaN;
+
+    /// <summary>"about 43% narrower" (whole percent), or "–" when unknown.</summary>
+    public static string Narrowing(NormalFormFit.Onset.NextMeasurement m)
+    {
+        var p = NarrowingPercent(m);
+        return double.IsFinite(p) ? "about " + Math.Round(p).ToString("F0", System.Globalization.CultureInfo.InvariantCulture) + "% narrower" : "–";
+    }
+}

@@ -178,15 +178,14 @@ public static class TextReport
         }
 
         sb.AppendLine();
-        sb.AppendLine("Next measurements (where new runs shrink the onset interval most)");
+        sb.AppendLine("Next measurements (where new runs shrink the onset interval most; the narrowing in the linear approximation)");
         foreach (var m in report.NextMeasurements)
         {
             var period = double.IsFinite(m.ExpectedPeriod) ? string.Create(Inv, $", period about {m.ExpectedPeriod:G3}{(report.TimeUnit is { } tu ? " " + tu : string.Empty)}") : string.Empty;
-            // Digits to the second significant figure of the interval's implied standard error (width / 3.92).
-            var now = ReportNumbers.Interval(m.CurrentCi95, m.CurrentCi95.Width / 3.92);
-            var then = ReportNumbers.Interval(m.ExpectedCi95, m.ExpectedCi95.Width / 3.92);
+            var route = m.Route == OnsetRoute.Bottleneck ? report.FromBottleneck : report.FromPeriod;
+            var now = ReportNumbers.Interval(route.Ci95, route.StandardError);
             sb.AppendLine(string.Create(Inv,
-                $"  {WireNames.Of(m.Route)} route: {m.Runs} run(s) at μ = {m.Param:G6}{units}{period}: interval {now} expected to become {then}"));
+                $"  {WireNames.Of(m.Route)} route: {m.Runs} run(s) at μ = {NextRunWording.Param(m, report)}{units}{period}: its 95% interval {now}{units} expected {NextRunWording.Narrowing(m)}"));
         }
     }
 
@@ -204,12 +203,16 @@ public static class TextReport
         if (!e.IsAvailable)
         {
             var why = e.Diagnostics.Count > 0 ? e.Diagnostics[0].Message : "not available";
-            return label + "not available: " + why;
+            return label + NotAvailable(why);
         }
 
         return string.Create(Inv,
             $"{label}μc = {ReportNumbers.WithError(e.Value, e.StandardError)}{units}  95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}{units}  ({e.Runs} runs, {Law(e)})");
     }
+
+    /// <summary>"not available: why", without saying "not available" twice when the reason says it already.</summary>
+    internal static string NotAvailable(string why) =>
+        why.Contains("not available", StringComparison.Ordinal) ? why : "not available: " + why;
 
     private static string Law(OnsetEstimate e) => e.Curve?.Description ?? "no trend";
 

@@ -54,7 +54,8 @@ public partial class ReportReadingTests
         Assert.Contains("class=\"caution\"", section, StringComparison.Ordinal);
         foreach (var m in report.NextMeasurements)
         {
-            Assert.Contains(ReportNumbers.G(m.Param) + " mA", Text(section), StringComparison.Ordinal);
+            Assert.Contains(NextRunWording.Param(m, report) + " mA", Text(section), StringComparison.Ordinal);
+            Assert.Contains(NextRunWording.Narrowing(m), Text(section), StringComparison.Ordinal);
         }
 
         // Marked on the trend figure of each suggested route, named in the legend.
