@@ -45,6 +45,36 @@ internal static class ReportNumbers
     public static string Rounded(double value, double se) =>
         !double.IsFinite(value) ? "–" : se > 0 && double.IsFinite(se) ? value.ToString("F" + Decimals(se).ToString(Inv), Inv) : G(value);
 
+    /// <summary>
+    /// <paramref name="digits"/> significant digits in plain notation, and beyond 10⁶ or below 10⁻⁴ as a power of ten
+    /// written out (7.63×10⁸), never the "E+08" of a computer format.
+    /// </summary>
+    public static string Plain(double x, int digits = 3)
+    {
+        if (!double.IsFinite(x))
+        {
+            return "–";
+        }
+
+        var a = Math.Abs(x);
+        if (x == 0 || (a >= 1e-4 && a < 1e6))
+        {
+            return x.ToString("G" + digits.ToString(Inv), Inv);
+        }
+
+        var exponent = (int)Math.Floor(Math.Log10(a));
+        var mantissa = Math.Round(x / Math.Pow(10, exponent), Math.Max(digits - 1, 0));
+        if (Math.Abs(mantissa) >= 10)
+        {
+            mantissa /= 10;
+            exponent++;
+        }
+
+        const string Superscripts = "⁰¹²³⁴⁵⁶⁷⁸⁹";
+        var power = string.Concat(Math.Abs(exponent).ToString(Inv).Select(c => Superscripts[c - '0']));
+        return mantissa.ToString("G" + digits.ToString(Inv), Inv) + "×10" + (exponent < 0 ? "⁻" : string.Empty) + power;
+    }
+
     private static int Decimals(double se) => NormalFormFit.Numerics.ErrorDigits.Decimals(se);
 }
 

@@ -159,7 +159,7 @@ public static partial class HtmlReport
         var largest = c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN;
         sb.Append("<p class=\"verdict ").Append(c.Consistent ? "good" : "bad").Append("\"><strong>")
           .Append(c.Consistent ? "Consistent with the data" : "Rejected by the data").Append("</strong>: ")
-          .Append(string.Create(Inv, $"misfit Q = {G(c.Statistic, 4)} against {replicates} run sets simulated from the fitted model (mean {G(c.Expected, 4)}, largest {G(largest, 4)}); p = {G(c.PValue, 2)}."))
+          .Append(string.Create(Inv, $"misfit Q = {Plain(c.Statistic, 4)} against {replicates} run sets simulated from the fitted model (mean {Plain(c.Expected, 4)}, largest {Plain(largest, 3)}); p = {G(c.PValue, 2)}."))
           .Append("</p>\n");
         sb.Append("<table class=\"answer\">\n<thead><tr><th>parameter</th><th>value ± s.e.</th><th>95% interval</th><th>bias removed</th></tr></thead>\n<tbody>\n");
         foreach (var p in c.Parameters.Append(c.Offset).Append(c.Scale))
@@ -173,7 +173,7 @@ public static partial class HtmlReport
 
             sb.Append("<td class=\"num\">").Append(WithError(p.Value, p.StandardError)).Append("</td>")
               .Append("<td class=\"num\">").Append(Interval(p.Ci95, p.StandardError)).Append("</td>")
-              .Append("<td class=\"num\">").Append(G(p.Bias, 3)).Append("</td></tr>\n");
+              .Append("<td class=\"num\">").Append(Rounded(p.Bias, p.StandardError)).Append("</td></tr>\n");
         }
 
         sb.Append("<tr><th scope=\"row\">model's onset μ_lab</th>");
@@ -181,17 +181,22 @@ public static partial class HtmlReport
             ? "<td class=\"num\">" + WithError(c.Onset.Value, c.Onset.StandardError) + units + "</td><td class=\"num\">" + Interval(c.OnsetCi95, c.Onset.StandardError) + units + "</td><td></td>"
             : "<td colspan=\"3\">none in reach</td>");
         sb.Append("</tr>\n</tbody></table>\n");
+        if (double.IsFinite(c.Onset.Value))
+        {
+            sb.Append("<p class=\"caution\">The model's onset is where the fitted model stops turning; near it the system turns slowly and ")
+              .Append("may stall or start unexpectedly. ").Append(E(TextReport.Caution)).Append("</p>\n");
+        }
 
         sb.Append("<h3>Where the model fits worst</h3>\n<table class=\"runs\">\n<thead><tr><th>run or phase region</th><th>misfit ÷ expected</th><th>mean residual</th></tr></thead>\n<tbody>\n");
         foreach (var r in c.WorstRuns)
         {
-            sb.Append("<tr><td>").Append(E(r.File)).Append(" (μ = ").Append(G(r.Param)).Append(")</td><td class=\"num\">").Append(G(r.Ratio, 3))
+            sb.Append("<tr><td>").Append(E(r.File)).Append(" (μ = ").Append(G(r.Param)).Append(units).Append(")</td><td class=\"num\">").Append(Plain(r.Ratio, 3))
               .Append("</td><td>").Append(Residual(r.MeanResidual)).Append("</td></tr>\n");
         }
 
         foreach (var g in c.WorstRegions)
         {
-            sb.Append(string.Create(Inv, $"<tr><td>θ in [{g.From:F2}, {g.To:F2}) rad</td><td class=\"num\">")).Append(G(g.Ratio, 3))
+            sb.Append(string.Create(Inv, $"<tr><td>θ in [{g.From:F2}, {g.To:F2}) rad</td><td class=\"num\">")).Append(Plain(g.Ratio, 3))
               .Append("</td><td>").Append(Residual(g.MeanResidual)).Append("</td></tr>\n");
         }
 
