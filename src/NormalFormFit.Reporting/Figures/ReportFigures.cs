@@ -504,8 +504,21 @@ public static partial class ReportFigures
         var caption = "Black: the measured mean period of each run (± 1 standard error)." +
             (field.Length > 0 ? " Amber triangles: ∮dθ/(dθ/dt) from the reconstructed field, which should match the measurement within its error (a check on the field)." : string.Empty) +
             (neck.Length > 0 ? " Blue squares: π/√(ab) from the bottleneck alone, which approaches the measurement as the run nears onset." : string.Empty) +
-            (field.Length == 0 && neck.Length == 0 ? " No run has a reconstructed field (event times carry periods only), so there are no predictions to compare." : string.Empty);
+            (field.Length == 0 && neck.Length == 0 ? $" No run has a reconstructed field ({PeriodsOnlySource(runs)} carry periods only), so there are no predictions to compare." : string.Empty);
         return new Figure("periods", field.Length + neck.Length > 0 ? "Measured against predicted periods" : "Measured periods", caption, plot);
+    }
+
+    /// <summary>What the runs without a field were recorded as: event times, events detected in a signal, or both.</summary>
+    private static string PeriodsOnlySource(IReadOnlyList<RunResult> runs)
+    {
+        var signal = runs.Any(r => r.Events is not null);
+        var events = runs.Any(r => r.Events is null);
+        return (signal, events) switch
+        {
+            (true, false) => "events detected in a single signal",
+            (true, true) => "event times and events detected in a signal",
+            _ => "event times",
+        };
     }
 
     /// <summary>Figure 6: binned residuals of every bottleneck fit across its window.</summary>
