@@ -61,11 +61,11 @@ public static class TextReport
             [
                 G(r.Param, 6),
                 b is null ? "–" : F(b.Phase.Value, 3),
-                b is null ? "–" : G(b.A.Value, 4),
+                b is null ? "–" : ReportNumbers.Rounded(b.A.Value, b.A.StandardError),
                 b is null ? "–" : G(b.A.StandardError, 2),
-                b is null ? "–" : G(b.B.Value, 4),
+                b is null ? "–" : ReportNumbers.Rounded(b.B.Value, b.B.StandardError),
                 b is null ? "–" : G(b.B.StandardError, 2),
-                p is null ? "–" : G(p.Measured.Value, 5),
+                p is null ? "–" : ReportNumbers.Rounded(p.Measured.Value, p.Measured.StandardError),
                 p is null ? "–" : G(p.Measured.StandardError, 2),
                 p is null ? "–" : G(p.FromBottleneck.Value, 5),
                 p is null ? "–" : G(p.FromField.Value, 5),
@@ -76,7 +76,11 @@ public static class TextReport
             ]);
         }
 
-        var widths = Enumerable.Range(0, header.Length).Select(c => rows.Max(row => row[c].Length)).ToArray();
+        // Only the columns some run has a value in (event times have no field, no run may rest below onset): the run
+        // parameter and the flags always.
+        var keep = Enumerable.Range(0, header.Length).Where(c => c == 0 || c == header.Length - 1 || rows.Skip(1).Any(row => row[c] != "–")).ToArray();
+        rows = [.. rows.Select(row => keep.Select(c => row[c]).ToArray())];
+        var widths = Enumerable.Range(0, keep.Length).Select(c => rows.Max(row => row[c].Length)).ToArray();
         foreach (var row in rows)
         {
             var line = new StringBuilder("  ");

@@ -293,7 +293,7 @@ public static partial class ReportFigures
             : new Figure("trend-period", "Onset by the period route (T⁻² → 0)",
                 "1/T² of each run (black dots, ± 1 standard error) against μ, the fitted law with its 95% band. The law is a weighted " +
                 "polynomial in μ, or T = α(μ−μc)^−½ + β (the bottleneck passage plus a constant excursion time) drawn as 1/T², " +
-                "whichever AICc prefers. " + onsetText, plot);
+                "whichever AICc prefers" + (estimate.Curve is { } law ? "; here the " + law.Description : string.Empty) + ". " + onsetText, plot);
     }
 
     /// <summary>
