@@ -119,14 +119,14 @@ internal static class CompareCommand
             return ExitCodes.BadInput;
         }
 
-        if (jsonPath is not null && !CommandOutput.TryWriteJson(jsonPath, s => ComparisonJson.Write(c, s, NffitApp.Version), stdout, stderr))
+        if (jsonPath is not null && !CommandOutput.TryWriteJson(jsonPath, s => ComparisonJson.Write(c, s, NffitApp.Version, analysis.Value.ParamUnits, analysis.Value.TimeUnit), stdout, stderr))
         {
             return ExitCodes.BadInput;
         }
 
         if (jsonPath != "-" && !quiet)
         {
-            stdout.Write(ComparisonText.Format(c));
+            stdout.Write(ComparisonText.Format(c, analysis.Value.ParamUnits));
         }
 
         return ExitCodes.Ok;

@@ -66,10 +66,10 @@ internal static class ReportFolder
             {
                 using (var json = File.Create(Path.Combine(tmp, "model.json")))
                 {
-                    ComparisonJson.Write(model, json, NffitApp.Version);
+                    ComparisonJson.Write(model, json, NffitApp.Version, report.ParamUnits, report.TimeUnit);
                 }
 
-                text += Environment.NewLine + "Reduced model" + Environment.NewLine + ComparisonText.Format(model);
+                text += Environment.NewLine + "Reduced model" + Environment.NewLine + ComparisonText.Format(model, report.ParamUnits);
             }
 
             File.WriteAllText(Path.Combine(tmp, "report.txt"), text, Utf8);

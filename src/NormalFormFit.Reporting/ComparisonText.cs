@@ -9,24 +9,29 @@ namespace NormalFormFit.Reporting;
 /// </summary>
 public static class ComparisonText
 {
-    /// <summary>The text of <paramref name="c"/>, one item a line (invariant culture).</summary>
-    public static string Format(ModelComparison c)
+    /// <summary>The text of <paramref name="c"/>, one item a line (invariant culture); values with the digits their standard errors support.</summary>
+    /// <param name="c">The comparison.</param>
+    /// <param name="paramUnits">Unit of the control parameter (of μ_lab and the onset), when known.</param>
+    public static string Format(ModelComparison c, string? paramUnits = null)
     {
         ArgumentNullException.ThrowIfNull(c);
+        var u = paramUnits is { Length: > 0 } pu ? " " + pu : string.Empty;
         var ic = CultureInfo.InvariantCulture;
         var w = new StringWriter(ic);
         w.WriteLine($"model  dθ/dt = {c.Expression}");
         foreach (var p in c.Parameters.Append(c.Offset).Append(c.Scale))
         {
             w.WriteLine(p.Fixed
-                ? string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  (held)")
+                ? string.Create(ic, $"  {p.Name,-10} {ReportNumbers.G(p.Value),12}  (held)")
                 : double.IsNaN(p.Value) ? $"  {p.Name,-10} unidentifiable: the data do not determine it"
-                : string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  ± {p.StandardError:G2}   95% [{p.Ci95.Low:G6}, {p.Ci95.High:G6}]"));
+                : string.Create(ic, $"  {p.Name,-10} {ReportNumbers.Rounded(p.Value, p.StandardError),12}  ± {ReportNumbers.Rounded(p.StandardError, p.StandardError)}   95% {ReportNumbers.Interval(p.Ci95, p.StandardError)}"));
         }
 
-        w.WriteLine(string.Create(ic, $"onset  μ_lab = {c.Onset.Value:G6} ± {c.Onset.StandardError:G2}   95% [{c.OnsetCi95.Low:G6}, {c.OnsetCi95.High:G6}]"));
+        w.WriteLine(double.IsFinite(c.Onset.Value)
+            ? $"onset  μ_lab = {ReportNumbers.WithError(c.Onset.Value, c.Onset.StandardError)}{u}   95% {ReportNumbers.Interval(c.OnsetCi95, c.Onset.StandardError)}{u}"
+            : "onset  none in reach of the runs");
         var replicates = c.ReplicateStatistics.Count + c.FailedReplicates;
-        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {c.Statistic:G4}; {replicates} simulated from the fit: mean {c.Expected:G4}, largest {(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN):G4}; p = {c.PValue:G2})"));
+        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {ReportNumbers.Plain(c.Statistic, 4)}; {replicates} simulated from the fit: mean {ReportNumbers.Plain(c.Expected, 4)}, largest {ReportNumbers.Plain(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN, 3)}; p = {c.PValue:G2})"));
         w.WriteLine(c.Sense switch
         {
             TurningSense.Forward => "turning sense  the phase increases in every run as read; the model is fitted with positive speeds",
@@ -36,13 +41,13 @@ public static class ComparisonText
         w.WriteLine("worst runs (misfit over its mean in the simulated replicates; about 1 is a good fit):");
         foreach (var r in c.WorstRuns)
         {
-            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {r.Param:G6}  {r.Ratio:F2}  model {(r.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(r.MeanResidual):F2} (replicate RMS)"));
+            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {r.Param:G6}{u}  {ReportNumbers.Plain(r.Ratio, 2)}  model {(r.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(r.MeanResidual):F2} (replicate RMS)"));
         }
 
         w.WriteLine("worst phase regions (radians, in the data's phase):");
         foreach (var g in c.WorstRegions)
         {
-            w.WriteLine(string.Create(ic, $"  [{g.From:F2}, {g.To:F2})  {g.Ratio:F2}  model {(g.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(g.MeanResidual):F2} (replicate RMS)"));
+            w.WriteLine(string.Create(ic, $"  [{g.From:F2}, {g.To:F2})  {ReportNumbers.Plain(g.Ratio, 2)}  model {(g.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(g.MeanResidual):F2} (replicate RMS)"));
         }
 
         foreach (var d in c.Diagnostics)

@@ -45,5 +45,68 @@ internal static class ReportNumbers
     public static string Rounded(double value, double se) =>
         !double.IsFinite(value) ? "–" : se > 0 && double.IsFinite(se) ? value.ToString("F" + Decimals(se).ToString(Inv), Inv) : G(value);
 
+    /// <summary>
+    /// <paramref name="digits"/> significant digits in plain notation, and beyond 10⁶ or below 10⁻⁴ as a power of ten
+    /// written out (7.63×10⁸), never the "E+08" of a computer format.
+    /// </summary>
+    public static string Plain(double x, int digits = 3)
+    {
+        if (!double.IsFinite(x))
+        {
+            return "–";
+        }
+
+        var a = Math.Abs(x);
+        if (x == 0 || (a >= 1e-4 && a < 1e6))
+        {
+            return x.ToString("G" + digits.ToString(Inv), Inv);
+        }
+
+        var exponent = (int)Math.Floor(Math.Log10(a));
+        var mantissa = Math.Round(x / Math.Pow(10, exponent), Math.Max(digits - 1, 0));
+        if (Math.Abs(mantissa) >= 10)
+        {
+            mantissa /= 10;
+            exponent++;
+        }
+
+        const string Superscripts = "⁰¹²³⁴⁵⁶⁷⁸⁹";
+        var power = string.Concat(Math.Abs(exponent).ToString(Inv).Select(c => Superscripts[c - '0']));
+        return mantissa.ToString("G" + digits.ToString(Inv), Inv) + "×10" + (exponent < 0 ? "⁻" : string.Empty) + power;
+    }
+
     private static int Decimals(double se) => NormalFormFit.Numerics.ErrorDigits.Decimals(se);
+}
+
+/// <summary>
+/// The suggested next runs in words shared by the text, the page and the figures: where (μ to the second significant
+/// digit of its distance from the route's onset; the optimum is flat, more digits would only look precise) and what
+/// they are expected to do to the route's reported 95% interval.
+/// </summary>
+internal static class NextRunWording
+{
+    /// <summary>The suggested μ, rounded to the second significant digit of its distance from the route's onset.</summary>
+    public static string Param(NormalFormFit.Onset.NextMeasurement m, NormalFormFit.Analysis.AnalysisReport report)
+    {
+        var route = m.Route == NormalFormFit.Onset.OnsetRoute.Bottleneck ? report.FromBottleneck : report.FromPeriod;
+        var distance = route.IsAvailable ? Math.Abs(m.Param - route.Value) : double.NaN;
+        return ReportNumbers.Rounded(m.Param, distance);
+    }
+
+    /// <summary>
+    /// The expected narrowing of the route's interval in percent: one less the ratio of the expected to the current
+    /// half-width, both in the planner's linear (delta-method) approximation, so that the ratio is not mixed with the
+    /// reported (Fieller or profile) interval's shape. NaN when either width is not finite.
+    /// </summary>
+    public static double NarrowingPercent(NormalFormFit.Onset.NextMeasurement m) =>
+        m.CurrentCi95.Width > 0 && double.IsFinite(m.CurrentCi95.Width) && double.IsFinite(m.ExpectedCi95.Width)
+            ? 100 * (1 - (m.ExpectedCi95.Width / m.CurrentCi95.Width))
+            : double.NaN;
+
+    /// <summary>"about 43% narrower" (whole percent), or "–" when unknown.</summary>
+    public static string Narrowing(NormalFormFit.Onset.NextMeasurement m)
+    {
+        var p = NarrowingPercent(m);
+        return double.IsFinite(p) ? "about " + Math.Round(p).ToString("F0", System.Globalization.CultureInfo.InvariantCulture) + "% narrower" : "–";
+    }
 }

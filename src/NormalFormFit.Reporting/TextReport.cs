@@ -61,11 +61,11 @@ public static class TextReport
             [
                 G(r.Param, 6),
                 b is null ? "–" : F(b.Phase.Value, 3),
-                b is null ? "–" : G(b.A.Value, 4),
+                b is null ? "–" : ReportNumbers.Rounded(b.A.Value, b.A.StandardError),
                 b is null ? "–" : G(b.A.StandardError, 2),
-                b is null ? "–" : G(b.B.Value, 4),
+                b is null ? "–" : ReportNumbers.Rounded(b.B.Value, b.B.StandardError),
                 b is null ? "–" : G(b.B.StandardError, 2),
-                p is null ? "–" : G(p.Measured.Value, 5),
+                p is null ? "–" : ReportNumbers.Rounded(p.Measured.Value, p.Measured.StandardError),
                 p is null ? "–" : G(p.Measured.StandardError, 2),
                 p is null ? "–" : G(p.FromBottleneck.Value, 5),
                 p is null ? "–" : G(p.FromField.Value, 5),
@@ -76,7 +76,11 @@ public static class TextReport
             ]);
         }
 
-        var widths = Enumerable.Range(0, header.Length).Select(c => rows.Max(row => row[c].Length)).ToArray();
+        // Only the columns some run has a value in (event times have no field, no run may rest below onset): the run
+        // parameter and the flags always.
+        var keep = Enumerable.Range(0, header.Length).Where(c => c == 0 || c == header.Length - 1 || rows.Skip(1).Any(row => row[c] != "–")).ToArray();
+        rows = [.. rows.Select(row => keep.Select(c => row[c]).ToArray())];
+        var widths = Enumerable.Range(0, keep.Length).Select(c => rows.Max(row => row[c].Length)).ToArray();
         foreach (var row in rows)
         {
             var line = new StringBuilder("  ");
@@ -178,15 +182,14 @@ public static class TextReport
         }
 
         sb.AppendLine();
-        sb.AppendLine("Next measurements (where new runs shrink the onset interval most)");
+        sb.AppendLine("Next measurements (where new runs shrink the onset interval most; the narrowing in the linear approximation)");
         foreach (var m in report.NextMeasurements)
         {
             var period = double.IsFinite(m.ExpectedPeriod) ? string.Create(Inv, $", period about {m.ExpectedPeriod:G3}{(report.TimeUnit is { } tu ? " " + tu : string.Empty)}") : string.Empty;
-            // Digits to the second significant figure of the interval's implied standard error (width / 3.92).
-            var now = ReportNumbers.Interval(m.CurrentCi95, m.CurrentCi95.Width / 3.92);
-            var then = ReportNumbers.Interval(m.ExpectedCi95, m.ExpectedCi95.Width / 3.92);
+            var route = m.Route == OnsetRoute.Bottleneck ? report.FromBottleneck : report.FromPeriod;
+            var now = ReportNumbers.Interval(route.Ci95, route.StandardError);
             sb.AppendLine(string.Create(Inv,
-                $"  {WireNames.Of(m.Route)} route: {m.Runs} run(s) at μ = {m.Param:G6}{units}{period}: interval {now} expected to become {then}"));
+                $"  {WireNames.Of(m.Route)} route: {m.Runs} run(s) at μ = {NextRunWording.Param(m, report)}{units}{period}: its 95% interval {now}{units} expected {NextRunWording.Narrowing(m)}"));
         }
     }
 
@@ -204,12 +207,16 @@ public static class TextReport
         if (!e.IsAvailable)
         {
             var why = e.Diagnostics.Count > 0 ? e.Diagnostics[0].Message : "not available";
-            return label + "not available: " + why;
+            return label + NotAvailable(why);
         }
 
         return string.Create(Inv,
             $"{label}μc = {ReportNumbers.WithError(e.Value, e.StandardError)}{units}  95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}{units}  ({e.Runs} runs, {Law(e)})");
     }
+
+    /// <summary>"not available: why", without saying "not available" twice when the reason says it already.</summary>
+    internal static string NotAvailable(string why) =>
+        why.Contains("not available", StringComparison.Ordinal) ? why : "not available: " + why;
 
     private static string Law(OnsetEstimate e) => e.Curve?.Description ?? "no trend";
 

@@ -22,6 +22,12 @@ public static class FigurePalette
     /// <summary>Rejected samples (positions dropped as off the orbit).</summary>
     public static Color Rejected { get; } = Color.FromHex("#A3322A");
 
+    /// <summary>
+    /// A fitted reduced model drawn against the runs: plum, a hue no run, route or rejected point takes, and darker
+    /// than the ramp's light end, so its dashes stand apart from every run's markers.
+    /// </summary>
+    public static Color Model { get; } = Color.FromHex("#9B2C7C");
+
     /// <summary>Reference laws (slope −½, identity line).</summary>
     public static Color Reference { get; } = Color.FromHex("#7A7A80");
 

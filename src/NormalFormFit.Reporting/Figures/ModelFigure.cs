@@ -38,7 +38,7 @@ public static partial class ReportFigures
             marks.LegendText = ParamValue(report, r.Param);
         }
 
-        // The model last, in its own style (black dashes over every run), listed once after the runs.
+        // The model last, in its own style (plum dashes over every run, a colour no run has), listed once after the runs.
         var labelled = false;
         for (var i = 0; i < runs.Count; i++)
         {
@@ -51,8 +51,8 @@ public static partial class ReportFigures
             var model = grid.Select(t => s * evaluator.Evaluate(s * t, muModel, pars, [])).ToArray();
             if (model.All(double.IsFinite))
             {
-                var line = plot.Add.ScatterLine(grid, model, FigurePalette.Ink);
-                line.LineWidth = 2f;
+                var line = plot.Add.ScatterLine(grid, model, FigurePalette.Model);
+                line.LineWidth = 2.2f;
                 line.LinePattern = LinePattern.Dashed;
                 if (!labelled)
                 {
@@ -65,7 +65,7 @@ public static partial class ReportFigures
         plot.ShowLegend(Edge.Right);
         return new Figure("model", "The runs against the fitted model",
             "Markers: each run's reconstructed phase velocity with its pointwise 95% band (shaded), coloured from dark (lowest μ) " +
-            "to light (highest μ), on the phase axis of the field figure (centred on the bottleneck). Black dashes: the fitted model dθ/dt = " + comparison.Expression + " at each run's " +
+            "to light (highest μ), on the phase axis of the field figure (centred on the bottleneck). Plum dashes: the fitted model dθ/dt = " + comparison.Expression + " at each run's " +
             "μ_model = c0 + c1·μ_lab, with the bias-corrected parameters. The fields are bin means smoothed by the spline, " +
             "which flattens their extremes; the parameters have that bias removed, so a correct model may stand just outside " +
             "the bands at the extremes. The bands are those of the field's bootstrap and understate its scatter for runs " +

@@ -247,25 +247,44 @@ public static partial class ReportFigures
         marks.LegendText = bottleneckRoute ? "a per run (± 1 s.e.)" : "1/T² per run (± 1 s.e.)";
 
         // Both onsets on the zero line, where the trend crosses it, each with its 95% interval as a capped bar: open
-        // diamonds and squares in the routes' colours, so they cannot be read as runs (filled black circles).
+        // diamonds and squares in the routes' colours, so they cannot be read as runs (filled black circles). The marks
+        // first and the bars over them, this route's thick bar under the other's thin one, so no mark hides a bar.
         var yMax = pts.Max(p => p.Y + Finite(p.S));
         var yMin = Math.Min(0, pts.Min(p => p.Y - Finite(p.S)));
         var span = Math.Max(yMax - yMin, 1e-12);
         var own = bottleneckRoute ? report.FromBottleneck : report.FromPeriod;
         var other = bottleneckRoute ? report.FromPeriod : report.FromBottleneck;
-        var drawnOwn = OnsetMarker(plot, own, bottleneckRoute, 0.035 * span, xMin - pad, xMax + pad, report.ParamUnits, own: true);
-        var drawnOther = OnsetMarker(plot, other, !bottleneckRoute, 0.02 * span, xMin - pad, xMax + pad, report.ParamUnits, own: false);
+        var drawnOwn = OnsetMark(plot, own, bottleneckRoute, report.ParamUnits, own: true);
+        var drawnOther = OnsetMark(plot, other, !bottleneckRoute, report.ParamUnits, own: false);
+        OnsetBar(plot, own, bottleneckRoute, 0.035 * span, xMin - pad, xMax + pad, own: true);
+        OnsetBar(plot, other, !bottleneckRoute, 0.02 * span, xMin - pad, xMax + pad, own: false);
         var next = NextRunMarks(plot, report, estimate, xMin - pad, xMax + pad);
+
+        // An interval narrower than its mark cannot be read off the bar: an inset note says so and where to read it.
+        var narrow = new[] { (E: own, Bottleneck: bottleneckRoute, Size: OwnMarkSize), (E: other, Bottleneck: !bottleneckRoute, Size: OtherMarkSize) }
+            .Where(o => o.E.IsAvailable && NarrowerThanMark(o.E.Ci95, xMax - xMin + (2 * pad), o.Size))
+            .ToList();
+        if (narrow.Count > 0)
+        {
+            var note = plot.Add.Annotation(NarrowNote([.. narrow.Select(o => (o.E, o.Bottleneck))], report.ParamUnits),
+                estimate.Curve is { } c && c.Slope(estimate.Value) < 0 ? Alignment.LowerLeft : Alignment.LowerRight);
+            note.LabelFontSize = 12;
+            note.LabelFontColor = FigurePalette.Ink;
+            note.LabelBackgroundColor = Colors.White.WithAlpha(0.92);
+            note.LabelBorderColor = FigurePalette.Reference;
+        }
 
         plot.Axes.SetLimitsX(xMin - pad, xMax + pad);
         plot.ShowLegend(Alignment.UpperLeft);
         var ownShape = bottleneckRoute ? "blue open diamond" : "amber open square";
         var otherShape = bottleneckRoute ? "amber open square" : "blue open diamond";
         var onsetText = (drawnOwn
-                ? $"Where it crosses zero: the onset by the {(bottleneckRoute ? "bottleneck" : "period")} route ({ownShape} on the zero line, its 95% interval as a capped bar{(bottleneckRoute ? " by Fieller's theorem" : string.Empty)}). "
+                ? $"Where it crosses zero: the onset by the {(bottleneckRoute ? "bottleneck" : "period")} route ({ownShape} on the zero line, its 95% interval as a capped bar{(bottleneckRoute ? " by Fieller's theorem" : string.Empty)}, drawn over the mark). "
                 : $"The {(bottleneckRoute ? "bottleneck" : "period")} route gave no onset, so none is drawn. ")
             + (drawnOther ? $"The onset by the {(bottleneckRoute ? "period" : "bottleneck")} route is drawn on the same line for comparison ({otherShape}, thinner bar). " : string.Empty)
-            + "A bar narrower than its mark is hidden by it; the legend gives every interval. "
+            + (narrow.Count > 0
+                ? $"The 95% interval of the {string.Join(" and of the ", narrow.Select(o => o.Bottleneck ? "bottleneck route" : "period route"))} is narrower than its mark at this scale, as the note in the corner says; the legend and the onsets close up give it. "
+                : string.Empty)
             + (next ? "Black open circles: where the next runs would shrink this route's interval most (see Next measurements)." : string.Empty);
         onsetText = onsetText.TrimEnd();
         return bottleneckRoute
@@ -274,7 +293,7 @@ public static partial class ReportFigures
             : new Figure("trend-period", "Onset by the period route (T⁻² → 0)",
                 "1/T² of each run (black dots, ± 1 standard error) against μ, the fitted law with its 95% band. The law is a weighted " +
                 "polynomial in μ, or T = α(μ−μc)^−½ + β (the bottleneck passage plus a constant excursion time) drawn as 1/T², " +
-                "whichever AICc prefers. " + onsetText, plot);
+                "whichever AICc prefers" + (estimate.Curve is { } law ? "; here the " + law.Description : string.Empty) + ". " + onsetText, plot);
     }
 
     /// <summary>
@@ -299,7 +318,7 @@ public static partial class ReportFigures
 
             var mark = plot.Add.Marker(m.Param, y, MarkerShape.OpenCircle, 18, FigurePalette.Ink);
             mark.LineWidth = 2;
-            mark.LegendText = $"next runs: {m.Runs} at {ParamValue(report, m.Param)}";
+            mark.LegendText = $"next runs: {m.Runs} at μ = {NextRunWording.Param(m, report)}{Unit(report.ParamUnits)}";
             drawn = true;
         }
 
@@ -480,12 +499,26 @@ public static partial class ReportFigures
         }
 
         plot.ShowLegend(Alignment.UpperRight);
-        plot.Axes.SetLimitsY(0, 1.08 * runs.SelectMany(r => new[] { r.Period!.Measured.Value, r.Period.FromField.Value, r.Period.FromBottleneck.Value }).Where(double.IsFinite).DefaultIfEmpty(1).Max());
+        // The y range holds every value and every measured error bar whole.
+        plot.Axes.SetLimitsY(0, 1.08 * runs.SelectMany(r => new[] { r.Period!.Measured.Value + Finite(r.Period.Measured.StandardError), r.Period.FromField.Value, r.Period.FromBottleneck.Value }).Where(double.IsFinite).DefaultIfEmpty(1).Max());
         var caption = "Black: the measured mean period of each run (± 1 standard error)." +
             (field.Length > 0 ? " Amber triangles: ∮dθ/(dθ/dt) from the reconstructed field, which should match the measurement within its error (a check on the field)." : string.Empty) +
             (neck.Length > 0 ? " Blue squares: π/√(ab) from the bottleneck alone, which approaches the measurement as the run nears onset." : string.Empty) +
-            (field.Length == 0 && neck.Length == 0 ? " No run has a reconstructed field (event times carry periods only), so there are no predictions to compare." : string.Empty);
+            (field.Length == 0 && neck.Length == 0 ? $" No run has a reconstructed field ({PeriodsOnlySource(runs)} carry periods only), so there are no predictions to compare." : string.Empty);
         return new Figure("periods", field.Length + neck.Length > 0 ? "Measured against predicted periods" : "Measured periods", caption, plot);
+    }
+
+    /// <summary>What the runs without a field were recorded as: event times, events detected in a signal, or both.</summary>
+    private static string PeriodsOnlySource(IReadOnlyList<RunResult> runs)
+    {
+        var signal = runs.Any(r => r.Events is not null);
+        var events = runs.Any(r => r.Events is null);
+        return (signal, events) switch
+        {
+            (true, false) => "events detected in a single signal",
+            (true, true) => "event times and events detected in a signal",
+            _ => "event times",
+        };
     }
 
     /// <summary>Figure 6: binned residuals of every bottleneck fit across its window.</summary>
@@ -523,11 +556,33 @@ public static partial class ReportFigures
             "too wide for a parabola.", plot);
     }
 
+    /// <summary>Size in pixels of the mark of the figure's own route's onset.</summary>
+    internal const int OwnMarkSize = 16;
+
+    /// <summary>Size in pixels of the mark of the other route's onset.</summary>
+    internal const int OtherMarkSize = 12;
+
     /// <summary>
-    /// An onset on the zero line: an open mark at μc and its 95% interval as a bar with end caps (a bound the data do
-    /// not give runs to the plot's edge, uncapped). False when the route gave no onset.
+    /// Width in pixels of a figure's data area, at least: the default width less the widest margins the axes take
+    /// (tick labels and the axis label on the left, padding on the right; measured on the report's figures).
     /// </summary>
-    private static bool OnsetMarker(Plot plot, OnsetEstimate e, bool bottleneckRoute, double cap, double xMin, double xMax, string? unit, bool own)
+    private const int MinDataAreaPixels = DefaultWidth - 130;
+
+    /// <summary>
+    /// True when the interval drawn on an axis <paramref name="axisWidth"/> wide spans fewer pixels than a mark of
+    /// <paramref name="markSize"/> pixels, so the mark covers it (an unbounded interval is never narrow).
+    /// </summary>
+    internal static bool NarrowerThanMark(Interval ci, double axisWidth, int markSize) =>
+        double.IsFinite(ci.Low) && double.IsFinite(ci.High) && axisWidth > 0
+        && (ci.High - ci.Low) / axisWidth * MinDataAreaPixels < markSize;
+
+    private static string NarrowNote(IReadOnlyList<(OnsetEstimate E, bool Bottleneck)> narrow, string? unit) =>
+        (narrow.Count > 1 ? "95% intervals narrower than their marks:\n" : "95% interval narrower than its mark:\n") + string.Join("\n", narrow.Select(o =>
+            $"{(o.Bottleneck ? "bottleneck route" : "period route")} {ReportNumbers.Interval(o.E.Ci95, o.E.StandardError)}{Unit(unit)}"))
+        + "\n(see the onsets close up)";
+
+    /// <summary>An onset's open mark on the zero line, with its value and interval in the legend; false when the route gave no onset.</summary>
+    private static bool OnsetMark(Plot plot, OnsetEstimate e, bool bottleneckRoute, string? unit, bool own)
     {
         if (!e.IsAvailable)
         {
@@ -535,11 +590,30 @@ public static partial class ReportFigures
         }
 
         var colour = bottleneckRoute ? FigurePalette.Bottleneck : FigurePalette.Period;
+        var dot = plot.Add.Marker(e.Value, 0, bottleneckRoute ? MarkerShape.OpenDiamond : MarkerShape.OpenSquare, own ? OwnMarkSize : OtherMarkSize, colour);
+        dot.LineWidth = own ? 2.5f : 1.8f;
+        var label = bottleneckRoute ? "onset, bottleneck route" : "onset, period route";
+        dot.LegendText = $"{label}: {ReportNumbers.WithError(e.Value, e.StandardError)}{Unit(unit)}, 95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}{Unit(unit)}";
+        return true;
+    }
+
+    /// <summary>
+    /// An onset's 95% interval on the zero line as a bar with end caps (a bound the data do not give runs to the plot's
+    /// edge, uncapped), added after the marks so that it is drawn over them.
+    /// </summary>
+    private static void OnsetBar(Plot plot, OnsetEstimate e, bool bottleneckRoute, double cap, double xMin, double xMax, bool own)
+    {
+        if (!e.IsAvailable)
+        {
+            return;
+        }
+
+        var colour = bottleneckRoute ? FigurePalette.Bottleneck : FigurePalette.Period;
         var lo = double.IsFinite(e.Ci95.Low) ? Math.Max(e.Ci95.Low, xMin) : xMin;
         var hi = double.IsFinite(e.Ci95.High) ? Math.Min(e.Ci95.High, xMax) : xMax;
         var bar = plot.Add.Line(lo, 0, hi, 0);
         bar.Color = colour;
-        bar.LineWidth = own ? 5 : 3;
+        bar.LineWidth = own ? 5 : 2;
         foreach (var (x, bounded) in new[] { (lo, double.IsFinite(e.Ci95.Low) && e.Ci95.Low >= xMin), (hi, double.IsFinite(e.Ci95.High) && e.Ci95.High <= xMax) })
         {
             if (bounded)
@@ -549,12 +623,6 @@ public static partial class ReportFigures
                 c.LineWidth = own ? 2.5f : 1.5f;
             }
         }
-
-        var dot = plot.Add.Marker(e.Value, 0, bottleneckRoute ? MarkerShape.OpenDiamond : MarkerShape.OpenSquare, own ? 16 : 12, colour);
-        dot.LineWidth = own ? 2.5f : 1.8f;
-        var label = bottleneckRoute ? "onset, bottleneck route" : "onset, period route";
-        dot.LegendText = $"{label}: {ReportNumbers.WithError(e.Value, e.StandardError)}{Unit(unit)}, 95% {ReportNumbers.Interval(e.Ci95, e.StandardError)}{Unit(unit)}";
-        return true;
     }
 
     /// <summary>

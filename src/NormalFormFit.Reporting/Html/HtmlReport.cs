@@ -159,7 +159,7 @@ public static partial class HtmlReport
         var largest = c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN;
         sb.Append("<p class=\"verdict ").Append(c.Consistent ? "good" : "bad").Append("\"><strong>")
           .Append(c.Consistent ? "Consistent with the data" : "Rejected by the data").Append("</strong>: ")
-          .Append(string.Create(Inv, $"misfit Q = {G(c.Statistic, 4)} against {replicates} run sets simulated from the fitted model (mean {G(c.Expected, 4)}, largest {G(largest, 4)}); p = {G(c.PValue, 2)}."))
+          .Append(string.Create(Inv, $"misfit Q = {Plain(c.Statistic, 4)} against {replicates} run sets simulated from the fitted model (mean {Plain(c.Expected, 4)}, largest {Plain(largest, 3)}); p = {G(c.PValue, 2)}."))
           .Append("</p>\n");
         sb.Append("<table class=\"answer\">\n<thead><tr><th>parameter</th><th>value ± s.e.</th><th>95% interval</th><th>bias removed</th></tr></thead>\n<tbody>\n");
         foreach (var p in c.Parameters.Append(c.Offset).Append(c.Scale))
@@ -173,7 +173,7 @@ public static partial class HtmlReport
 
             sb.Append("<td class=\"num\">").Append(WithError(p.Value, p.StandardError)).Append("</td>")
               .Append("<td class=\"num\">").Append(Interval(p.Ci95, p.StandardError)).Append("</td>")
-              .Append("<td class=\"num\">").Append(G(p.Bias, 3)).Append("</td></tr>\n");
+              .Append("<td class=\"num\">").Append(Rounded(p.Bias, p.StandardError)).Append("</td></tr>\n");
         }
 
         sb.Append("<tr><th scope=\"row\">model's onset μ_lab</th>");
@@ -181,17 +181,22 @@ public static partial class HtmlReport
             ? "<td class=\"num\">" + WithError(c.Onset.Value, c.Onset.StandardError) + units + "</td><td class=\"num\">" + Interval(c.OnsetCi95, c.Onset.StandardError) + units + "</td><td></td>"
             : "<td colspan=\"3\">none in reach</td>");
         sb.Append("</tr>\n</tbody></table>\n");
+        if (double.IsFinite(c.Onset.Value))
+        {
+            sb.Append("<p class=\"caution\">The model's onset is where the fitted model stops turning; near it the system turns slowly and ")
+              .Append("may stall or start unexpectedly. ").Append(E(TextReport.Caution)).Append("</p>\n");
+        }
 
         sb.Append("<h3>Where the model fits worst</h3>\n<table class=\"runs\">\n<thead><tr><th>run or phase region</th><th>misfit ÷ expected</th><th>mean residual</th></tr></thead>\n<tbody>\n");
         foreach (var r in c.WorstRuns)
         {
-            sb.Append("<tr><td>").Append(E(r.File)).Append(" (μ = ").Append(G(r.Param)).Append(")</td><td class=\"num\">").Append(G(r.Ratio, 3))
+            sb.Append("<tr><td>").Append(E(r.File)).Append(" (μ = ").Append(G(r.Param)).Append(units).Append(")</td><td class=\"num\">").Append(Plain(r.Ratio, 3))
               .Append("</td><td>").Append(Residual(r.MeanResidual)).Append("</td></tr>\n");
         }
 
         foreach (var g in c.WorstRegions)
         {
-            sb.Append(string.Create(Inv, $"<tr><td>θ in [{g.From:F2}, {g.To:F2}) rad</td><td class=\"num\">")).Append(G(g.Ratio, 3))
+            sb.Append(string.Create(Inv, $"<tr><td>θ in [{g.From:F2}, {g.To:F2}) rad</td><td class=\"num\">")).Append(Plain(g.Ratio, 3))
               .Append("</td><td>").Append(Residual(g.MeanResidual)).Append("</td></tr>\n");
         }
 
@@ -243,7 +248,7 @@ public static partial class HtmlReport
         if (!e.IsAvailable)
         {
             var why = e.Diagnostics.Count > 0 ? e.Diagnostics[0].Message : "not available";
-            sb.Append("<td colspan=\"4\">not available: ").Append(E(why)).Append("</td></tr>\n");
+            sb.Append("<td colspan=\"4\">").Append(E(TextReport.NotAvailable(why))).Append("</td></tr>\n");
             return;
         }
 
@@ -268,16 +273,16 @@ public static partial class HtmlReport
         sb.Append("<section id=\"next\"><h2>Next measurements</h2>\n<p>Where new runs would shrink each route's 95% onset interval most ")
           .Append("(c-optimal design for the root of the route's trend; Atkinson, Donev &amp; Tobias 2007, §10).</p>\n")
           .Append("<div class=\"next-wrap\"><table class=\"runs\">\n<thead><tr><th>route</th><th>new runs</th><th>at μ</th><th>period about (")
-          .Append(tu).Append(")</th><th>interval now</th><th>expected after</th></tr></thead>\n<tbody>\n");
+          .Append(tu).Append(")</th><th>95% interval now</th><th>expected after</th></tr></thead>\n<tbody>\n");
         foreach (var m in report.NextMeasurements)
         {
-            var now = Interval(m.CurrentCi95, m.CurrentCi95.Width / 3.92);
-            var then = Interval(m.ExpectedCi95, m.ExpectedCi95.Width / 3.92);
+            var route = m.Route == OnsetRoute.Bottleneck ? report.FromBottleneck : report.FromPeriod;
+            var now = Interval(route.Ci95, route.StandardError);
             sb.Append("<tr><td>").Append(E(WireNames.Of(m.Route))).Append(" route</td><td class=\"num\">").Append(m.Runs.ToString(Inv))
-              .Append("</td><td class=\"num\">").Append(G(m.Param)).Append(pu)
+              .Append("</td><td class=\"num\">").Append(E(NextRunWording.Param(m, report))).Append(pu)
               .Append("</td><td class=\"num\">").Append(double.IsFinite(m.ExpectedPeriod) ? G(m.ExpectedPeriod, 3) : "–")
               .Append("</td><td class=\"num\">").Append(now).Append(pu)
-              .Append("</td><td class=\"num\">").Append(then).Append(pu).Append("</td></tr>\n");
+              .Append("</td><td>").Append(E(NextRunWording.Narrowing(m))).Append("</td></tr>\n");
         }
 
         sb.Append("</tbody></table>\n<p class=\"caution\">These runs lie close to the onset, where the system turns slowly and may stall or ")
@@ -287,7 +292,7 @@ public static partial class HtmlReport
         {
             sb.Append("<p class=\"note\">The suggested values are marked (black open circles) on ")
               .Append(string.Join(" and ", marked.Select(n => $"<a href=\"#fig-{n}\">{(n == "trend-a" ? "the bottleneck route's trend" : "the period route's trend")}</a>")))
-              .Append(". The expected intervals assume the new runs follow the fitted trend with errors like their neighbours'.</p>\n");
+              .Append(". The expected narrowing assumes the new runs follow the fitted trend with errors like their neighbours'; it is the ratio of the interval's half-widths after and now in the linear approximation μc ± t·sd/|slope| (delta method), applied to the route's reported interval above.</p>\n");
         }
 
         sb.Append("</section>\n");
@@ -307,32 +312,54 @@ public static partial class HtmlReport
         sb.Append("</section>\n");
     }
 
+    /// <summary>The run table; the columns of the field and the bottleneck fit only when some run has them (not for event times).</summary>
     private static void Runs(StringBuilder sb, AnalysisReport report)
     {
         var tu = report.TimeUnit is { Length: > 0 } t ? E(t) : "time unit";
+        var fit = report.Runs.Any(r => r.Bottleneck is not null || r.Field is not null);
         sb.Append("<section id=\"runs\"><h2>Runs</h2>\n<div class=\"scroll\"><table class=\"runs\">\n<thead><tr>")
-          .Append("<th>run</th><th>μ").Append(report.ParamUnits is { Length: > 0 } pu ? " (" + E(pu) + ")" : string.Empty)
-          .Append("</th><th>θ* (rad)</th><th>a (rad/").Append(tu).Append(")</th><th>b (1/(rad·").Append(tu).Append("))</th><th>T measured (").Append(tu)
-          .Append(")</th><th>π/√(ab) (").Append(tu).Append(")</th><th>∮dθ/θ̇ (").Append(tu).Append(")</th><th>revolutions</th><th>flags</th>")
-          .Append("</tr></thead>\n<tbody>\n");
+          .Append("<th>run</th><th>μ").Append(report.ParamUnits is { Length: > 0 } pu ? " (" + E(pu) + ")" : string.Empty).Append("</th>");
+        if (fit)
+        {
+            sb.Append("<th>θ* (rad)</th><th>a (rad/").Append(tu).Append(")</th><th>b (1/(rad·").Append(tu).Append("))</th>");
+        }
+
+        sb.Append("<th>T measured (").Append(tu).Append(")</th>");
+        if (fit)
+        {
+            sb.Append("<th>π/√(ab) (").Append(tu).Append(")</th><th>∮dθ/θ̇ (").Append(tu).Append(")</th>");
+        }
+
+        sb.Append("<th>revolutions</th><th>flags</th></tr></thead>\n<tbody>\n");
         foreach (var r in report.Runs.OrderBy(r => r.Param))
         {
             var b = r.Bottleneck;
             var p = r.Period;
             sb.Append("<tr><td>").Append(E(r.Label ?? r.File)).Append("</td>")
-              .Append("<td class=\"num\">").Append(G(r.Param)).Append("</td>")
-              .Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.Phase.Value, b.Phase.StandardError)).Append("</td>")
-              .Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.A.Value, b.A.StandardError)).Append("</td>")
-              .Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.B.Value, b.B.StandardError)).Append("</td>")
-              .Append("<td class=\"num\">").Append(p is null ? "–" : WithError(p.Measured.Value, p.Measured.StandardError)).Append("</td>")
-              .Append("<td class=\"num\">").Append(p is null ? "–" : G(p.FromBottleneck.Value, 5)).Append("</td>")
-              .Append("<td class=\"num\">").Append(p is null ? "–" : G(p.FromField.Value, 5)).Append("</td>")
-              .Append("<td class=\"num\">").Append((p?.Revolutions ?? 0).ToString(Inv)).Append("</td>")
+              .Append("<td class=\"num\">").Append(G(r.Param)).Append("</td>");
+            if (fit)
+            {
+                sb.Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.Phase.Value, b.Phase.StandardError)).Append("</td>")
+                  .Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.A.Value, b.A.StandardError)).Append("</td>")
+                  .Append("<td class=\"num\">").Append(b is null ? "–" : WithError(b.B.Value, b.B.StandardError)).Append("</td>");
+            }
+
+            sb.Append("<td class=\"num\">").Append(p is null ? "–" : WithError(p.Measured.Value, p.Measured.StandardError)).Append("</td>");
+            if (fit)
+            {
+                sb.Append("<td class=\"num\">").Append(p is null ? "–" : G(p.FromBottleneck.Value, 5)).Append("</td>")
+                  .Append("<td class=\"num\">").Append(p is null ? "–" : G(p.FromField.Value, 5)).Append("</td>");
+            }
+
+            sb.Append("<td class=\"num\">").Append((p?.Revolutions ?? 0).ToString(Inv)).Append("</td>")
               .Append("<td>").Append(report.FlagsOf(r) is { Count: > 0 } flags ? E(string.Join(", ", flags.Select(WireNames.Of))) : "ok").Append("</td></tr>\n");
         }
 
         sb.Append("</tbody></table></div>\n<p class=\"note\">Values ± one standard error. The same numbers, unrounded, are in runs.csv; ")
-          .Append("each run's reconstructed field with its band is in field.csv; everything is in report.json.</p></section>\n");
+          .Append(report.Runs.Any(r => r.Field is not null)
+              ? "each run's reconstructed field with its band is in field.csv; "
+              : "no run has a reconstructed field (periods only), so field.csv holds its header alone; ")
+          .Append("everything is in report.json.</p></section>\n");
     }
 
     private static void Diagnostics(StringBuilder sb, AnalysisReport report)
@@ -388,11 +415,18 @@ public static partial class HtmlReport
                 "Phase velocity" => smoothed,
                 "Field on the circle" => fields,
                 "Bottleneck normal form" => bottleneck,
+                "Agreement" => report.FromBottleneck.IsAvailable && report.FromPeriod.IsAvailable,
                 _ => true,
             };
             if (ran)
             {
-                notes.Add((term, term == "Periods" && !bottleneck ? PeriodsWithoutBottleneck : text));
+                notes.Add(term switch
+                {
+                    "Periods" when !bottleneck => (term, PeriodsWithoutBottleneck),
+                    "Onset, both routes" when !report.FromBottleneck.IsAvailable || !report.FromPeriod.IsAvailable =>
+                        OneRouteNote(report.FromBottleneck.IsAvailable, report.FromPeriod.IsAvailable),
+                    _ => (term, text),
+                });
             }
         }
 
@@ -412,6 +446,23 @@ public static partial class HtmlReport
     private static readonly (string Term, string Text) EventNote = ("Event times", "For runs recorded as event times (one event per " +
         "revolution), and for single signals whose events nffit detects, there is no phase between events: no smoothing, field or bottleneck fit ran on them, and they enter the period " +
         "route only, through the mean interval between events.");
+
+    /// <summary>The onset note when one route (or neither) gave an estimate: only the fits that gave one are described.</summary>
+    private static (string Term, string Text) OneRouteNote(bool bottleneck, bool period)
+    {
+        const string Fit = "fitted against μ by weighted least squares, the straight line or a quadratic chosen by AICc (Hurvich & Tsai 1989), " +
+            "errors scaled by the reduced χ² (Birge ratio). The onset is the zero of the trend; its 95% interval inverts the test of a " +
+            "zero there (Fieller 1954).";
+        return (bottleneck, period) switch
+        {
+            (true, false) => ("Onset, bottleneck route", "a is " + Fit + " The period route gave no onset (see Diagnostics)."),
+            (false, true) => ("Onset, period route", "1/T² is " + Fit + " The square-root law T = α(μ−μc)^−½ + β (the bottleneck passage plus a " +
+                "constant excursion time; Strogatz §4.3) is also tried on the periods, μc by profile likelihood with the same Birge-scaled " +
+                "test, and used when AICc, computed for both as densities of the measured periods, prefers it. The bottleneck route gave " +
+                "no onset (see Diagnostics)."),
+            _ => ("Onset", "Neither route gave an onset (see Diagnostics)."),
+        };
+    }
 
     private const string PeriodsWithoutBottleneck = "The measured period is the mean time between crossings of one phase (or between " +
         "events), with its standard error from the spread of the revolutions.";

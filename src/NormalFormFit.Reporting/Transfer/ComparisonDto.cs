@@ -28,6 +28,9 @@ internal sealed record ModelDto
 
     public required ModelOnsetDto Onset { get; init; }
 
+    /// <summary>Units of μ_lab (and the onset) and of time, as in the analysis report; null when unknown.</summary>
+    public UnitsDto Units { get; init; } = new();
+
     public bool Consistent { get; init; }
 
     public required string TurningSense { get; init; }

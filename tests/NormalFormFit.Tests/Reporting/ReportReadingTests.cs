@@ -54,7 +54,8 @@ public partial class ReportReadingTests
         Assert.Contains("class=\"caution\"", section, StringComparison.Ordinal);
         foreach (var m in report.NextMeasurements)
         {
-            Assert.Contains(ReportNumbers.G(m.Param) + " mA", Text(section), StringComparison.Ordinal);
+            Assert.Contains(NextRunWording.Param(m, report) + " mA", Text(section), StringComparison.Ordinal);
+            Assert.Contains(NextRunWording.Narrowing(m), Text(section), StringComparison.Ordinal);
         }
 
         // Marked on the trend figure of each suggested route, named in the legend.
@@ -128,6 +129,24 @@ public partial class ReportReadingTests
         }
 
         Assert.Contains("(bottleneck-not-available)", text, StringComparison.Ordinal);
+
+        // The run tables have no columns of a field or a bottleneck fit that never ran, and the field file is not
+        // promised; the period figure's caption names the law that was used.
+        var runsTable = Text(page[page.IndexOf("<section id=\"runs\">", StringComparison.Ordinal)..page.IndexOf("<section id=\"diagnostics\">", StringComparison.Ordinal)]);
+        Assert.DoesNotContain("θ* (rad)", runsTable, StringComparison.Ordinal);
+        Assert.DoesNotContain("π/√(ab)", runsTable, StringComparison.Ordinal);
+        Assert.DoesNotContain("field with its band is in field.csv", runsTable, StringComparison.Ordinal);
+        Assert.Contains("T measured (s)", runsTable, StringComparison.Ordinal);
+        var textTable = text.Split('\n').Single(l => l.TrimStart().StartsWith("param", StringComparison.Ordinal));
+        Assert.DoesNotContain("θ*", textTable, StringComparison.Ordinal);
+        Assert.DoesNotContain("∮dθ/θ̇", textTable, StringComparison.Ordinal);
+        Assert.Contains("T meas", textTable, StringComparison.Ordinal);
+        Assert.Contains("; here the " + report.FromPeriod.Curve!.Description, figures.Single(f => f.Name == "trend-period").Caption, StringComparison.Ordinal);
+
+        // The method notes describe the one route that ran, and no agreement between routes.
+        Assert.Contains("Onset, period route", methods, StringComparison.Ordinal);
+        Assert.DoesNotContain("Onset, both routes", methods, StringComparison.Ordinal);
+        Assert.DoesNotContain("Agreement", methods, StringComparison.Ordinal);
     }
 
     [Fact]
