@@ -15,7 +15,7 @@ public sealed record NextMeasurement(OnsetRoute Route, double Param, int Runs, I
 /// <summary>
 /// Chooses the parameter value whose new runs shrink a route's onset interval most, from the fitted trend and its
 /// error model. Design criterion: after adding m runs at μ with the error σ(μ) predicted by a log-linear fit of the
-/// per-run errors, the covariance is (XᵀWX + m g gᵀ/σ²)⁻¹ times the current Birge scale (g the gradient of the fitted
+/// per-run errors, the covariance is (XᵀWX + m g gᵀ/σ²)⁻¹ times the factor the fit's covariance carries (g the gradient of the fitted
 /// quantity: the polynomial basis, or for the square-root law the Jacobian row of T with σ carried to T); the
 /// delta-method half-width t·sd(μc) of the onset (for a polynomial t·sd(y(μc))/|y′(μc)|) is minimised over μ (c-optimal design for the root; Atkinson, Donev &amp; Tobias,
 /// Optimum Experimental Designs, 2007, §10). Candidates lie on the turning side between half the nearest run's distance
@@ -64,7 +64,7 @@ public static class MeasurementPlanner
         }
 
         // Half-width t·sd(μc): sd² = hᵀ C h with h = dμc/dθ (for a polynomial −g(μc)/y′(μc), the delta method).
-        var scale = trend.Scaled ? trend.ReducedChiSquare : 1.0;
+        var scale = trend.CovarianceScale;
         var h = Vector<double>.Build.DenseOfArray(trend.RootGradient(root));
         double HalfWidth(Matrix<double> info, int dof)
         {

@@ -26,6 +26,9 @@ public abstract record OnsetCurve
     /// <summary>True when the covariance was scaled by the reduced χ² (Birge ratio) and Student-t quantiles apply.</summary>
     public abstract bool Scaled { get; init; }
 
+    /// <summary>The factor the fit's covariance was multiplied by: the reduced χ² when <see cref="Scaled"/>, else 1.</summary>
+    public double CovarianceScale => Scaled ? ReducedChiSquare : 1.0;
+
     /// <summary>y(μ) on the route's scale; NaN where the law is not defined (the square-root law on the resting side).</summary>
     public abstract double Evaluate(double mu);
 

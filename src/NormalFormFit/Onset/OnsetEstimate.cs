@@ -2,11 +2,12 @@ namespace NormalFormFit.Onset;
 
 /// <summary>A polynomial trend y(μ) fitted by weighted least squares, with its covariance.</summary>
 /// <param name="Coefficients">c₀, c₁[, c₂] of y = Σ cₖ (μ − μ₀)ᵏ.</param>
-/// <param name="Covariance">Covariance of the coefficients (already scaled by the reduced χ² when <see cref="Scaled"/>).</param>
+/// <param name="Covariance">Covariance of the coefficients (already multiplied by <see cref="OnsetCurve.CovarianceScale"/>).</param>
 /// <param name="Origin">μ₀, the centre of the parameter values (for conditioning).</param>
 /// <param name="ReducedChiSquare">χ²/(n − p) against the per-run standard errors.</param>
 /// <param name="DegreesOfFreedom">n − p.</param>
-/// <param name="Scaled">True when the covariance was scaled by the reduced χ² (Birge ratio) and Student-t quantiles apply.</param>
+/// <param name="Scaled">True when the covariance was scaled by the reduced χ² (Birge ratio) and Student-t quantiles apply
+/// (the bottleneck route's trend: only when that ratio exceeds 1, <see cref="TrendFit.ScalesDown"/>).</param>
 public sealed record Trend(double[] Coefficients, double[,] Covariance, double Origin, double ReducedChiSquare, int DegreesOfFreedom, bool Scaled) : OnsetCurve
 {
     /// <inheritdoc/>

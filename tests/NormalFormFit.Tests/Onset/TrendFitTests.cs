@@ -39,13 +39,60 @@ public class TrendFitTests
     }
 
     [Fact]
-    public void Root_OfExactLine_IsExactAndIntervalIsNarrow()
+    public void Root_OfExactLine_IsExact_TheBottleneckIntervalKeepsTheStatedErrors_AndThePeriodIntervalShrinks()
     {
-        // y = 2(μ − 0.3) with tiny noise-free errors: the root is 0.3 (exact algebra, common practice, no source).
-        var pts = new[] { 0.31, 0.35, 0.4, 0.5, 0.6 }.Select(m => new TrendPoint(m, 2 * (m - 0.3), 1e-3)).ToList();
-        var e = TrendFit.Root(OnsetRoute.Bottleneck, pts, allowCurvature: false);
-        Assert.Equal(0.3, e.Value, 12);
-        Assert.True(e.Ci95.Width < 1e-9);
+        // y = 2(μ − 0.3) without noise, errors 10⁻³: the root is 0.3 (exact algebra, common practice, no source).
+        // χ² = 0: the period route scales its covariance by it (an interval of zero width); the bottleneck route never
+        // scales down, so its interval is the one the stated errors give: half-width 1.96·σ·√(1/n + (μc − μ̄)²/Sxx)/|slope|
+        // (the weighted straight line's variance at μc; Fieller's interval equals it to first order in g = t²·Var(slope)/slope²,
+        // here 10⁻⁵; common practice, no source).
+        var mus = new[] { 0.31, 0.35, 0.4, 0.5, 0.6 };
+        var pts = mus.Select(m => new TrendPoint(m, 2 * (m - 0.3), 1e-3)).ToList();
+        var bottleneck = TrendFit.Root(OnsetRoute.Bottleneck, pts, allowCurvature: false);
+        var period = TrendFit.Root(OnsetRoute.Period, pts, allowCurvature: false);
+
+        Assert.Equal(0.3, bottleneck.Value, 12);
+        Assert.Equal(0.3, period.Value, 12);
+        Assert.True(period.Ci95.Width < 1e-9);
+        var mean = mus.Average();
+        var sxx = mus.Sum(m => (m - mean) * (m - mean));
+        var half = MathNet.Numerics.Distributions.Normal.InvCDF(0, 1, 0.975) * 1e-3 * Math.Sqrt((1.0 / mus.Length) + ((0.3 - mean) * (0.3 - mean) / sxx)) / 2;
+        Assert.Equal(2 * half, bottleneck.Ci95.Width, 2 * half * 1e-3);
+    }
+
+    [Fact]
+    public void BottleneckRoot_WhenRunsScatterLessThanTheirErrors_MatchesScipyCurveFitWithAbsoluteSigma()
+    {
+        // Reference: Reference/make_trend_reference.py, "stated_errors" (the reference runs with errors three times
+        // larger, χ²/ν = 0.041; SciPy 1.10.1 curve_fit(line, mu, y, sigma=se, absolute_sigma=True) for the covariance,
+        // scipy.stats.norm.ppf(0.975): the error scale is not estimated, Fieller 1954). The bottleneck route keeps the
+        // stated errors instead of scaling its covariance down by χ²/ν; the period route (its per-run errors
+        // conservative by construction) still does.
+        var r = Reference();
+        var stated = r.GetProperty("stated_errors");
+        var se = stated.GetProperty("se").EnumerateArray().Select(e => e.GetDouble()).ToArray();
+        var pts = Points(r).Select((p, i) => p with { StandardError = se[i] }).ToList();
+        var trend = TrendFit.Fit(pts, 1, scaleDown: TrendFit.ScalesDown(OnsetRoute.Bottleneck));
+        var root = TrendFit.NearestRoot(trend, pts);
+        var estimate = TrendFit.Root(OnsetRoute.Bottleneck, pts, allowCurvature: false);
+        var q = MathNet.Numerics.Distributions.Normal.InvCDF(0, 1, 0.975);
+        var ci = TrendFit.InvertTest(trend, root, q, 0.14);
+
+        Assert.False(trend.Scaled);
+        Assert.Equal(stated.GetProperty("z975").GetDouble(), q, 1e-12);
+        Assert.Equal(stated.GetProperty("reduced_chi2").GetDouble(), trend.ReducedChiSquare, 1e-9);
+        Assert.Equal(stated.GetProperty("root").GetDouble(), root, 1e-9);
+        Assert.Equal(stated.GetProperty("ci95_low").GetDouble(), ci.Low, 1e-9);
+        Assert.Equal(stated.GetProperty("ci95_high").GetDouble(), ci.High, 1e-9);
+        Assert.Equal(1.0, trend.CovarianceScale);
+
+        // The route itself smooths the errors across μ first (a quadratic in μ fitted to log σᵢ), which moves them by a
+        // few percent here: its interval is the same to within 2% of the width (measured 0.4%), and unscaled as well.
+        Assert.False(estimate.Trend!.Scaled);
+        Assert.Equal(ci.Low, estimate.Ci95.Low, 0.02 * ci.Width);
+        Assert.Equal(ci.High, estimate.Ci95.High, 0.02 * ci.Width);
+        Assert.False(TrendFit.ScalesDown(OnsetRoute.Bottleneck));
+        Assert.True(TrendFit.ScalesDown(OnsetRoute.Period));
     }
 
     [Fact]
