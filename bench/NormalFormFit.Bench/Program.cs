@@ -31,6 +31,16 @@ public static class Program
             return Sweeps(args[1..]);
         }
 
+        if (args.Length > 0 && args[0] == "hh-steps")
+        {
+            return HodgkinHuxleySteps(args[1..]);
+        }
+
+        if (args.Length > 0 && args[0] == "current-steps")
+        {
+            return CurrentSteps(args[1..]);
+        }
+
         if (args.Length > 0 && args[0] == "signal-coverage")
         {
             return SignalCoverage(args[1..]);
@@ -111,6 +121,74 @@ public static class Program
 
         File.WriteAllText(Path.Combine(folder, "manifest.csv"), manifest.ToString());
         File.WriteAllText(Path.Combine(folder, "one.csv"), "file,I_app [uA/cm2]\nsweep_0.csv," + (onset + offsets[0]).ToString("R", CultureInfo.InvariantCulture) + "\n");
+        return 0;
+    }
+
+    // `current-steps FOLDER SECONDS SEED`: current-clamp sweeps of the class-I Morris–Lecar model as in the signal
+    // acceptance test (sweeps at the knee of I∞(V) −2, −1, −0.4 (silent), +0.25 … +7 μA/cm²), a noise current of
+    // 1 μA/cm²·√ms and 0.3 mV of measurement noise (invented demo levels), `time_ms,Vm_mV` at 20 kHz, manifest
+    // `file,I_app [uA/cm2]`. Prints the onset (knee) so that a run of `nffit analyze` on the folder can be judged.
+    private static int CurrentSteps(string[] args)
+    {
+        var folder = args[0];
+        var seconds = double.Parse(args[1], CultureInfo.InvariantCulture);
+        var seed = int.Parse(args[2], CultureInfo.InvariantCulture);
+        Directory.CreateDirectory(folder);
+        var model = NormalFormFit.Simulation.MorrisLecar.ClassOne;
+        var onset = model.RestSaddleNode().Current;
+        double[] offsets = [-2, -1, -0.4, 0.25, 0.5, 1, 1.75, 2.5, 3.5, 5, 7];
+        var manifest = new System.Text.StringBuilder("file,I_app [uA/cm2]\n");
+        Parallel.For(0, offsets.Length, i =>
+        {
+            var track = model.Sweep(onset + offsets[i], seconds * 1000, 0.05, 0, 1.0, seed + i);
+            var noise = new Random(seed + 7919 + i);
+            var text = new System.Text.StringBuilder("time_ms,Vm_mV\n");
+            for (var k = 0; k < track.V.Length; k++)
+            {
+                text.Append(CultureInfo.InvariantCulture, $"{k * 0.05:F2},{track.V[k] + (0.3 * Math.Sqrt(-2 * Math.Log(1 - noise.NextDouble())) * Math.Cos(2 * Math.PI * noise.NextDouble())):F3}\n");
+            }
+
+            File.WriteAllText(Path.Combine(folder, string.Create(CultureInfo.InvariantCulture, $"sweep_{i:00}.csv")), text.ToString());
+        });
+        for (var i = 0; i < offsets.Length; i++)
+        {
+            manifest.Append(CultureInfo.InvariantCulture, $"sweep_{i:00}.csv,{onset + offsets[i]:R}\n");
+        }
+
+        File.WriteAllText(Path.Combine(folder, "manifest.csv"), manifest.ToString());
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"onset (knee of I∞(V)) {onset:R}"));
+        return 0;
+    }
+
+    // `hh-steps FOLDER SECONDS SEED I1 I2 …`: current-clamp sweeps of the Hodgkin–Huxley model (class II) from rest at
+    // the given currents (μA/cm²), a noise current of 0.5 μA/cm²·√ms and 0.3 mV of measurement noise (invented demo
+    // levels), `time_ms,Vm_mV` at 20 kHz, manifest `file,I_app [uA/cm2]`.
+    private static int HodgkinHuxleySteps(string[] args)
+    {
+        var folder = args[0];
+        var seconds = double.Parse(args[1], CultureInfo.InvariantCulture);
+        var seed = int.Parse(args[2], CultureInfo.InvariantCulture);
+        var currents = args[3..].Select(a => double.Parse(a, CultureInfo.InvariantCulture)).ToArray();
+        Directory.CreateDirectory(folder);
+        Parallel.For(0, currents.Length, i =>
+        {
+            var v = NormalFormFit.Simulation.HodgkinHuxley.Standard.Sweep(currents[i], seconds * 1000, 0.05, 0.5, seed + i);
+            var noise = new Random(seed + 7919 + i);
+            var text = new System.Text.StringBuilder("time_ms,Vm_mV\n");
+            for (var k = 0; k < v.Length; k++)
+            {
+                text.Append(CultureInfo.InvariantCulture, $"{k * 0.05:F2},{v[k] + (0.3 * Math.Sqrt(-2 * Math.Log(1 - noise.NextDouble())) * Math.Cos(2 * Math.PI * noise.NextDouble())):F3}\n");
+            }
+
+            File.WriteAllText(Path.Combine(folder, string.Create(CultureInfo.InvariantCulture, $"hh_{i:00}.csv")), text.ToString());
+        });
+        var manifest = new System.Text.StringBuilder("file,I_app [uA/cm2]\n");
+        for (var i = 0; i < currents.Length; i++)
+        {
+            manifest.Append(CultureInfo.InvariantCulture, $"hh_{i:00}.csv,{currents[i]:R}\n");
+        }
+
+        File.WriteAllText(Path.Combine(folder, "manifest.csv"), manifest.ToString());
         return 0;
     }
 

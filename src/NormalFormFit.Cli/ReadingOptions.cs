@@ -54,7 +54,9 @@ internal sealed class ReadingOptions
     public IReadOnlyDictionary<string, bool> Names() =>
         All.ToDictionary(o => o.Name.TrimStart('-'), o => o is Option<bool>, StringComparer.Ordinal);
 
-    private Option[] All => [timeCol, phaseCol, phaseUnit, timeUnit, paramUnit, paramCol, qualityCol, minQuality, decimalComma, kind, xCol, yCol, eventCol, signalCol, threshold, hysteresis, refractory, delimiter, yDown, unwrapped];
+    private readonly Option<bool> protophase = new("--signal-protophase") { Description = "signal: also reconstruct a protophase from the signal (delay-embedded orbit, arc length along the mean orbit) so that the bottleneck route can use the run (default: periods from the events only)" };
+
+    private Option[] All => [timeCol, phaseCol, phaseUnit, timeUnit, paramUnit, paramCol, qualityCol, minQuality, decimalComma, kind, xCol, yCol, eventCol, signalCol, threshold, hysteresis, refractory, protophase, delimiter, yDown, unwrapped];
 
     /// <summary>A usage error (exit code) when a column option is empty or not a position from 1; else null.</summary>
     public int? Check(ParseResult pr, TextWriter stderr) =>
@@ -108,6 +110,7 @@ internal sealed class ReadingOptions
                 Threshold = pr.GetValue(threshold),
                 Hysteresis = pr.GetValue(hysteresis),
                 RefractoryTime = pr.GetValue(refractory),
+                Protophase = pr.GetValue(protophase),
             },
         },
         ParamColumn = pr.GetValue(paramCol),

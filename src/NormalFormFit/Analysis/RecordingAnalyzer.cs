@@ -79,6 +79,25 @@ public static class RecordingAnalyzer
             : new Diagnostic(Severity.Info, "signal-silent", string.Create(ic,
                 $"column '{s.Column}' has no excursions of one height standing {2 * SignalEvents.ClearOfNoise:G} noise standard deviations ({2 * SignalEvents.ClearOfNoise * s.NoiseSd:G3}{su}) above its median {s.Baseline:G5}{su}: no events, a run that does not turn; give --event-threshold if the events are smaller"),
                 file));
+        // A protophase from the delay-embedded orbit gives the bottleneck; without one the run keeps its periods only.
+        var (phase, orbit, orbitDiags) = (options ?? RunOptions.Default).SignalEvents.Protophase
+            ? SignalPhase.FromSignal(signal, found)
+            : (null, null, []);
+        pre.AddRange(orbitDiags.Select(d => d with { File = file }));
+        if (phase is not null && orbit is not null)
+        {
+            pre.Add(new Diagnostic(Severity.Info, "signal-orbit", string.Create(ic,
+                $"protophase: angle about ({orbit.CentreX:G4}, {orbit.CentreY:G4}){su} on the orbit (s(t), s(t − {orbit.Delay:G3}{tu})), delay {orbit.DelayRule}; backward fraction {orbit.BackwardFraction:P1}; {orbit.Cycles - orbit.CyclesLeftOut} of {orbit.Cycles} cycle(s) monotone"),
+                file));
+            var fromPhase = FromPhase(phase, param, file, label, options, RecordingKind.Signal, null, pre);
+            if (fromPhase.Value is { } phased)
+            {
+                return new Loaded<RunResult>(phased with { Events = s, SignalOrbit = orbit, Dropped = signal.Dropped }, fromPhase.Diagnostics);
+            }
+
+            return fromPhase;
+        }
+
         var run = EventRunAnalyzer.Analyze(found.Events, param, file, label, pre);
         return new Loaded<RunResult>(run with { InputKind = RecordingKind.Signal, Events = s, Dropped = signal.Dropped, Samples = signal.Count, Duration = signal.Time[^1] - signal.Time[0] }, []);
     }

@@ -123,6 +123,9 @@ public sealed record RunResult(
     /// <summary>For a single-signal recording: the event detector's levels and counts; null otherwise.</summary>
     public SignalEventSummary? Events { get; init; }
 
+    /// <summary>For a single-signal recording with a protophase: the delay-embedded orbit and its centre; null otherwise.</summary>
+    public SignalOrbit? SignalOrbit { get; init; }
+
     /// <summary>Rows of the run file not used as samples, by reason (none when not known, e.g. run lines of an earlier version).</summary>
     public DroppedRows Dropped { get; init; } = DroppedRows.None;
 }

@@ -15,6 +15,9 @@ public sealed record SignalEventOptions
     /// <summary>Refractory time in the run's time unit: a crossing sooner than this after the last event is not an event; null: the median time an event stays above threshold.</summary>
     public double? RefractoryTime { get; init; }
 
+    /// <summary>Also reconstruct a protophase from the signal (<see cref="SignalPhase"/>) for the bottleneck route; off: periods from the events only.</summary>
+    public bool Protophase { get; init; }
+
     /// <summary>Levels from the signal.</summary>
     public static SignalEventOptions Default { get; } = new();
 

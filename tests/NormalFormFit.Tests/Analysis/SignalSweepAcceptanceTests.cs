@@ -59,23 +59,9 @@ public class SignalSweepAcceptanceTests(ITestOutputHelper output)
     [Fact]
     public void VoltageSweeps_WithoutOptions_GiveTheOnsetByThePeriodRoute_AndSilentSweepsDoNotTurn()
     {
-        var (onset, currents, voltages) = Sweeps.Value;
+        var onset = Sweeps.Value.Onset;
         using var folder = CliTestHost.NewFolder();
-        var manifest = new StringBuilder("file,I_app [uA/cm2]\n");
-        for (var i = 0; i < currents.Length; i++)
-        {
-            var name = $"sweep_{i:00}.csv";
-            var text = new StringBuilder("time_ms,Vm_mV\n");
-            for (var k = 0; k < voltages[i].Length; k++)
-            {
-                text.Append(CultureInfo.InvariantCulture, $"{k * Step:F2},{voltages[i][k]:F3}\n");
-            }
-
-            File.WriteAllText(folder.File(name), text.ToString());
-            manifest.Append(CultureInfo.InvariantCulture, $"{name},{currents[i]:R}\n");
-        }
-
-        File.WriteAllText(folder.File("manifest.csv"), manifest.ToString());
+        WriteVoltageFiles(folder);
         var root = Analyse(folder, onset);
 
         var runs = root.GetProperty("runs").EnumerateArray().ToList();
@@ -98,6 +84,58 @@ public class SignalSweepAcceptanceTests(ITestOutputHelper output)
                 Assert.InRange(events.GetProperty("threshold").GetDouble(), -20, 20);
             }
         }
+    }
+
+    [Fact]
+    public void VoltageSweeps_WithAProtophaseFromTheSignal_GiveTheOnsetByTheBottleneckRoute()
+    {
+        var onset = Sweeps.Value.Onset;
+        using var folder = CliTestHost.NewFolder();
+        WriteVoltageFiles(folder);
+        var (code, stdout, stderr) = CliTestHost.Run("analyze", folder.File("manifest.csv"), "--signal-protophase", "--json", folder.File("report.json"));
+        output.WriteLine(stdout);
+        output.WriteLine(stderr);
+        Assert.Equal(0, code);
+        var root = JsonDocument.Parse(File.ReadAllText(folder.File("report.json"))).RootElement;
+        var route = root.GetProperty("onset").GetProperty("from_bottleneck");
+        var value = route.GetProperty("value").GetDouble();
+        output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"onset {onset:R}; bottleneck route {value:R} ± {route.GetProperty("se").GetDouble():G3} [{route.GetProperty("ci95_low").GetDouble():R}, {route.GetProperty("ci95_high").GetDouble():R}]"));
+
+        // Firing sweeps have a bottleneck in protophase units (the nearest may be too noisy: its cycles are left out).
+        var runs = root.GetProperty("runs").EnumerateArray().ToList();
+        var withBottleneck = runs.Count(r => r.GetProperty("bottleneck").ValueKind == JsonValueKind.Object);
+        Assert.InRange(withBottleneck, 5, 8);
+
+        // Within a tenth of the distance to the nearest firing sweep, with a covering interval. Measured (2026-12-03):
+        // 39.974 ± 0.016, 95% [39.922, 40.023] against the knee 39.963 (0.011 high, 4 % of that distance; a trend with
+        // a curvature term chosen by AICc; the nearest sweep, +0.25, gives no protophase: noise runs every cycle
+        // backwards there). On another seed (bench: NormalFormFit.Bench current-steps DIR 4 1300, a different
+        // measurement-noise stream) the straight line was chosen and gave 39.27 ± 0.30, 95% [38.25, 40.00]: covering,
+        // but 0.69 low (an open gap: a/(μ − μc) falls from 0.0022 to 0.0014 between +0.5 and +7 μA/cm², so a straight
+        // line through the far runs is biased; the trend's law is the onset layer's choice).
+        Assert.InRange(Math.Abs(value - onset), 0, 0.1 * Nearest);
+        Assert.InRange(onset, route.GetProperty("ci95_low").GetDouble(), route.GetProperty("ci95_high").GetDouble());
+        Assert.Equal("saddle-node-on-circle", root.GetProperty("scaling").GetProperty("verdict").GetString());
+    }
+
+    private static void WriteVoltageFiles(CliTestHost.TempFolder folder)
+    {
+        var (_, currents, voltages) = Sweeps.Value;
+        var manifest = new StringBuilder("file,I_app [uA/cm2]\n");
+        for (var i = 0; i < currents.Length; i++)
+        {
+            var name = $"sweep_{i:00}.csv";
+            var text = new StringBuilder("time_ms,Vm_mV\n");
+            for (var k = 0; k < voltages[i].Length; k++)
+            {
+                text.Append(CultureInfo.InvariantCulture, $"{k * Step:F2},{voltages[i][k]:F3}\n");
+            }
+
+            File.WriteAllText(folder.File(name), text.ToString());
+            manifest.Append(CultureInfo.InvariantCulture, $"{name},{currents[i]:R}\n");
+        }
+
+        File.WriteAllText(folder.File("manifest.csv"), manifest.ToString());
     }
 
     [Fact]

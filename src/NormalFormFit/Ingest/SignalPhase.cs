@@ -1,0 +1,649 @@
+using System.Globalization;
+
+namespace NormalFormFit.Ingest;
+
+/// <summary>How a single signal was turned into a protophase.</summary>
+/// <param name="DelaySamples">Embedding delay d in samples: the orbit is (s(tᵢ), s(tᵢ₋d)).</param>
+/// <param name="Delay">The delay in the run's time unit (d times the typical sampling step).</param>
+/// <param name="DelayRule">How the delay was chosen (for the report).</param>
+/// <param name="CentreX">Centre of the protophase angle, first coordinate s(t), in the signal's unit.</param>
+/// <param name="CentreY">Centre of the protophase angle, second coordinate s(t − delay).</param>
+/// <param name="BackwardFraction">Backward angle over total angle travelled about the centre on the coarse-grained orbit (0: star-shaped about it).</param>
+/// <param name="Cycles">Whole cycles (event to event) checked.</param>
+/// <param name="CyclesLeftOut">Cycles left out because the protophase ran backwards or did not wind once.</param>
+/// <param name="LeftOutTimes">Start and end time of each stretch left out (pairs), for figures and messages.</param>
+public sealed record SignalOrbit(
+    int DelaySamples,
+    double Delay,
+    string DelayRule,
+    double CentreX,
+    double CentreY,
+    double BackwardFraction,
+    int Cycles,
+    int CyclesLeftOut,
+    IReadOnlyList<(double Start, double End)> LeftOutTimes);
+
+/// <summary>
+/// One signal → a protophase: a planar orbit by time-delay embedding, an interior point about which the orbit is
+/// star-shaped, arc length along the mean orbit, and every cycle checked for monotone protophase.
+/// </summary>
+/// <remarks>
+/// <para><b>Orbit.</b> The delay coordinates (s(t), s(t − τ)) of one observable of a system on a limit cycle trace a
+/// closed curve that is a smooth image of the cycle for generic τ (Takens 1981, "Detecting strange attractors in
+/// turbulence", Lecture Notes in Mathematics 898:366). τ = <see cref="DelayFraction"/> × the events' median width (time
+/// from the event until the signal is back below the threshold − hysteresis of the detector), in samples: the upstroke and the downstroke of a spike then lie apart and the spike
+/// embeds as a loop. The first minimum of the average mutual information (Fraser &amp; Swinney 1986) was tried and is
+/// not used: on Morris–Lecar sweeps it fell at 7–127 ms, longer than the 14 ms spike, which then embeds as two
+/// out-and-back needles about which no point sees a monotone angle (measured 2026-12-03, every cycle of the sweep 0.5
+/// μA/cm² above onset ran backwards by 1.5–2.6 rad). A small τ in samples is a fixed time on uniform sampling; gaps are
+/// never embedded across.</para>
+/// <para><b>Centre.</b> On the orbit coarse-grained to at most 20 000 block means, the point of a 25 × 25 grid over the
+/// orbit's box (then a 9 × 9 grid over the best cell and its neighbours) with the least backward angle per angle
+/// travelled, among the points about which the orbit winds once per event (within 25 %); among points within 1 % of
+/// the least, the one farthest from the orbit.</para>
+/// <para><b>Protophase.</b> Arc length along the mean orbit (<see cref="TemplateBins"/> bins of the angle about the
+/// centre, each sample projected onto the nearest segment), scaled to 2π per turn. Why not the angle itself: seen from
+/// any point inside a spike-shaped loop the long slow stretch before a spike lies almost along a ray, so the angle hardly
+/// moves there and the bottleneck is squeezed into a sliver of the circle (measured: ∮dθ/θ̇ 70–100 ms against periods of
+/// 160–360 ms). Why not arc length along the samples: it grows with every noise step and at the bottleneck would be mostly
+/// noise; projecting onto the mean orbit does not accumulate noise. An ellipse fit is not used: its centre can lie
+/// outside the slow part of a spike-shaped loop.</para>
+/// <para><b>Monotone cycles.</b> Cycle k runs from event k to event k + 1. Within it the unwrapped protophase must
+/// never fall more than <see cref="BackwardTolerance"/> below its running maximum, and must advance by one turn (within
+/// half a turn). A cycle that fails is flagged (<c>signal-cycles-left-out</c>) and its samples are left out, never
+/// fitted; the record is split there. Samples before the first and after the last event are checked for backward runs
+/// only. Onset and periods do not depend on the choice of protophase; a and b are in its units.</para>
+/// Cost O(n) (the grid search runs on the coarse-grained orbit; the projection on a window of the mean orbit).
+/// </remarks>
+public static class SignalPhase
+{
+    /// <summary>Largest fall of the protophase below its running maximum within a cycle: larger is a backward loop (measurement noise at the bottleneck moves it by about 0.01–0.1 rad).</summary>
+    public const double BackwardTolerance = Math.PI / 4;
+
+    /// <summary>Fewest events for a protophase: two whole cycles.</summary>
+    public const int MinimumEvents = 3;
+
+    /// <summary>Delay as a fraction of the events' median width (time from the event until the signal is back below threshold − hysteresis): the upstroke and downstroke of a spike then lie apart and the spike embeds as a loop, not as an out-and-back needle.</summary>
+    public const double DelayFraction = 0.25;
+
+    /// <summary>Bins of the angle about the centre in which the mean orbit is taken.</summary>
+    public const int TemplateBins = 720;
+
+    /// <summary>Bins either side of a bin whose samples make its mean-orbit point.</summary>
+    public const int TemplateSpan = 2;
+
+    /// <summary>Mean-orbit segments either side of a sample's own angle bin searched for its projection.</summary>
+    public const int ProjectionWindow = 12;
+
+    private const int CoarsePoints = 20000;
+    private const int Grid = 25;
+    private const int FineGrid = 9;
+
+    /// <summary>
+    /// The protophase of <paramref name="signal"/> cycle by cycle between the events in <paramref name="detected"/>. Null
+    /// (with a warning <c>no-signal-orbit</c>) when there are fewer than <see cref="MinimumEvents"/> events or no centre
+    /// about which the orbit winds once per event: the run then keeps its periods only.
+    /// </summary>
+    public static (PhaseRecording? Phase, SignalOrbit? Orbit, IReadOnlyList<Diagnostic> Diagnostics) FromSignal(SignalRecording signal, DetectedEvents detected)
+    {
+        ArgumentNullException.ThrowIfNull(signal);
+        ArgumentNullException.ThrowIfNull(detected);
+        var events = detected.Events;
+        var diags = new List<Diagnostic>();
+        var ic = CultureInfo.InvariantCulture;
+        if (events.Times.Length < MinimumEvents)
+        {
+            return (null, null, diags);
+        }
+
+        var v = signal.Values;
+        var t = signal.Time;
+        var n = v.Length;
+        var segOf = SegmentIndex(n, signal.SegmentStarts);
+        var step = Trajectory.TypicalStep(t);
+        var width = MedianWidth(t, v, events.Times, detected.Summary.Threshold - detected.Summary.Hysteresis);
+        var delay = (int)Math.Clamp(Math.Round(DelayFraction * width / step), 1, Math.Max(1, n / 4));
+        const string rule = "a quarter of the events' median width";
+
+        // Embedded samples: i with i − delay in the same segment.
+        var idx = new List<int>(n);
+        for (var i = delay; i < n; i++)
+        {
+            if (segOf[i] == segOf[i - delay])
+            {
+                idx.Add(i);
+            }
+        }
+
+        var m = idx.Count;
+        if (m < 16)
+        {
+            diags.Add(NoOrbit(signal, "too few samples remain once delayed"));
+            return (null, null, diags);
+        }
+
+        // Winding expected: one turn per event inside the embedded stretch.
+        var span0 = t[idx[0]];
+        var span1 = t[idx[^1]];
+        var expected = events.Times.Count(e => e >= span0 && e <= span1);
+        var (cx, cy) = CoarseOrbit(v, idx, delay, segOf);
+        var centre = ChooseCentre(cx, cy, Math.Max(expected, 1));
+        if (centre is not { } c)
+        {
+            diags.Add(NoOrbit(signal, string.Create(ic, $"no point inside the delay-embedded orbit (delay {delay * step:G3}) has the orbit wind round it once per event")));
+            return (null, null, diags);
+        }
+
+        // Protophase, unwrapped within segments, oriented to increase.
+        var theta = new double[m];
+        var net = 0.0;
+        for (var k = 0; k < m; k++)
+        {
+            var i = idx[k];
+            theta[k] = Math.Atan2(v[i - delay] - c.Y, v[i] - c.X);
+            if (k > 0 && segOf[i] == segOf[idx[k - 1]])
+            {
+                var d = theta[k] - theta[k - 1];
+                net += d - (2 * Math.PI * Math.Round(d / (2 * Math.PI)));
+            }
+        }
+
+        var sense = net >= 0 ? 1.0 : -1.0;
+        var unwrapped = new double[m];
+        for (var k = 0; k < m; k++)
+        {
+            var same = k > 0 && segOf[idx[k]] == segOf[idx[k - 1]];
+            if (!same)
+            {
+                unwrapped[k] = sense * theta[k];
+                continue;
+            }
+
+            var d = (sense * theta[k]) - (sense * theta[k - 1]);
+            unwrapped[k] = unwrapped[k - 1] + d - (2 * Math.PI * Math.Round(d / (2 * Math.PI)));
+        }
+
+        // The angle only orders the orbit; the protophase is arc length along the mean orbit (see remarks).
+        unwrapped = ArcLengthPhase(v, idx, delay, segOf, unwrapped);
+
+        // Cycles between events: monotone, one turn.
+        var keep = new bool[m];
+        Array.Fill(keep, true);
+        var leftOut = new List<(double, double)>();
+        var cycles = 0;
+        var bad = 0;
+        var ev = events.Times;
+        var k0 = 0;
+        var e0 = 0;
+        while (e0 < ev.Length && ev[e0] < t[idx[0]])
+        {
+            e0++;
+        }
+
+        // Stretch before the first event (partial: backward check only).
+        var firstEnd = k0;
+        while (firstEnd < m && (e0 >= ev.Length || t[idx[firstEnd]] < ev[e0]))
+        {
+            firstEnd++;
+        }
+
+        if (Backward(unwrapped, idx, segOf, k0, firstEnd) > BackwardTolerance)
+        {
+            Drop(keep, k0, firstEnd, t, idx, leftOut);
+        }
+
+        k0 = firstEnd;
+        for (var e = e0; e < ev.Length && k0 < m; e++)
+        {
+            var last = e + 1 >= ev.Length;
+            var kEnd = k0;
+            while (kEnd < m && (last || t[idx[kEnd]] < ev[e + 1]))
+            {
+                kEnd++;
+            }
+
+            if (kEnd <= k0)
+            {
+                continue;
+            }
+
+            var oneSegment = segOf[idx[k0]] == segOf[idx[kEnd - 1]];
+            var back = Backward(unwrapped, idx, segOf, k0, kEnd);
+            var whole = !last && oneSegment && kEnd < m;
+            var ok = back <= BackwardTolerance;
+            if (whole)
+            {
+                cycles++;
+                var advance = unwrapped[kEnd] - unwrapped[k0];
+                ok &= Math.Abs(advance - (2 * Math.PI)) <= Math.PI;
+                if (!ok)
+                {
+                    bad++;
+                }
+            }
+
+            if (!ok)
+            {
+                Drop(keep, k0, kEnd, t, idx, leftOut);
+            }
+
+            k0 = kEnd;
+        }
+
+        // Kept samples, a new segment wherever a stretch was left out or the signal had a gap.
+        var time = new List<double>(m);
+        var phase = new List<double>(m);
+        var starts = new List<int>();
+        var prevKept = -2;
+        for (var k = 0; k < m; k++)
+        {
+            if (!keep[k])
+            {
+                continue;
+            }
+
+            if (prevKept != k - 1 || segOf[idx[k]] != segOf[idx[prevKept]])
+            {
+                starts.Add(time.Count);
+            }
+
+            time.Add(t[idx[k]]);
+            phase.Add(unwrapped[k]);
+            prevKept = k;
+        }
+
+        if (time.Count < 16)
+        {
+            diags.Add(NoOrbit(signal, "every cycle's protophase runs backwards"));
+            return (null, null, diags);
+        }
+
+        if (bad > 0)
+        {
+            diags.Add(new Diagnostic(Severity.Warning, "signal-cycles-left-out", string.Create(ic,
+                $"{bad} of {cycles} cycle(s) of column '{signal.SignalColumnName}' do not go once round the delay-embedded orbit with a monotone protophase (a backward loop: a doublet, a failed spike or a glitch) and are left out of the bottleneck fit"),
+                signal.File));
+        }
+
+        var orbit = new SignalOrbit(delay, delay * step, rule, c.X, c.Y, c.Backward, cycles, bad, leftOut);
+        var rec = new PhaseRecording(signal.File, [.. time], [.. phase], [.. starts])
+        {
+            Unwrapped = true,
+            TimeUnit = signal.TimeUnit,
+            Dropped = signal.Dropped,
+            PhaseColumnName = signal.SignalColumnName,
+        };
+        return (rec, orbit, diags);
+    }
+
+    /// <summary>
+    /// Protophase as arc length along the mean orbit: the orbit's mean point in each of <see cref="TemplateBins"/> bins
+    /// of the angle about the centre gives a closed polyline (the mean orbit); each sample is projected onto the nearest
+    /// of its segments within <see cref="ProjectionWindow"/> bins of its own, and the protophase is 2π × the arc length
+    /// from the polyline's start to that point over the polyline's length, unwrapped with the angle's turn count.
+    /// Projection, not integration along the noisy samples, so noise does not accumulate. O(n · window).
+    /// </summary>
+    private static double[] ArcLengthPhase(double[] v, List<int> idx, int delay, int[] segOf, double[] angle)
+    {
+        var m = idx.Count;
+        var sx = new double[TemplateBins];
+        var sy = new double[TemplateBins];
+        var count = new int[TemplateBins];
+        var bin = new int[m];
+        for (var k = 0; k < m; k++)
+        {
+            var a = angle[k] - (2 * Math.PI * Math.Floor(angle[k] / (2 * Math.PI)));
+            var b = Math.Clamp((int)(a / (2 * Math.PI) * TemplateBins), 0, TemplateBins - 1);
+            bin[k] = b;
+            sx[b] += v[idx[k]];
+            sy[b] += v[idx[k] - delay];
+            count[b]++;
+        }
+
+        // Means over TemplateSpan neighbouring bins (sample-weighted), so that the few samples of the fast part do not
+        // make the mean orbit zig-zag and lengthen it.
+        var tx = new List<double>();
+        var ty = new List<double>();
+        var nearest = new int[TemplateBins];
+        for (var b = 0; b < TemplateBins; b++)
+        {
+            if (count[b] > 0)
+            {
+                double mx = 0, my = 0, mc = 0;
+                for (var w = -TemplateSpan; w <= TemplateSpan; w++)
+                {
+                    var j = (b + w + TemplateBins) % TemplateBins;
+                    mx += sx[j];
+                    my += sy[j];
+                    mc += count[j];
+                }
+
+                tx.Add(mx / mc);
+                ty.Add(my / mc);
+            }
+
+            nearest[b] = Math.Max(tx.Count - 1, 0);
+        }
+
+        var p = tx.Count;
+        if (p < 8)
+        {
+            return angle;
+        }
+
+        var cum = new double[p + 1];
+        for (var j = 0; j < p; j++)
+        {
+            var next = (j + 1) % p;
+            cum[j + 1] = cum[j] + Math.Sqrt(((tx[next] - tx[j]) * (tx[next] - tx[j])) + ((ty[next] - ty[j]) * (ty[next] - ty[j])));
+        }
+
+        var length = cum[p];
+        if (!(length > 0))
+        {
+            return angle;
+        }
+
+        var result = new double[m];
+        for (var k = 0; k < m; k++)
+        {
+            double x = v[idx[k]], y = v[idx[k] - delay];
+            var best = double.PositiveInfinity;
+            var along = 0.0;
+            for (var w = -ProjectionWindow; w <= ProjectionWindow; w++)
+            {
+                var j = (((nearest[bin[k]] + w) % p) + p) % p;
+                var next = (j + 1) % p;
+                double ux = tx[next] - tx[j], uy = ty[next] - ty[j];
+                var len2 = (ux * ux) + (uy * uy);
+                var u = len2 > 0 ? Math.Clamp((((x - tx[j]) * ux) + ((y - ty[j]) * uy)) / len2, 0, 1) : 0;
+                double dx = tx[j] + (u * ux) - x, dy = ty[j] + (u * uy) - y;
+                var d2 = (dx * dx) + (dy * dy);
+                if (d2 < best)
+                {
+                    best = d2;
+                    along = cum[j] + (u * (cum[j + 1] - cum[j]));
+                }
+            }
+
+            var psi = 2 * Math.PI * along / length;
+            if (k == 0 || segOf[idx[k]] != segOf[idx[k - 1]])
+            {
+                result[k] = psi + (2 * Math.PI * Math.Round((angle[k] - psi) / (2 * Math.PI)));
+            }
+            else
+            {
+                var d = psi - result[k - 1];
+                result[k] = result[k - 1] + d - (2 * Math.PI * Math.Round(d / (2 * Math.PI)));
+            }
+        }
+
+        return result;
+    }
+
+    /// <summary>Median time from each event until the signal falls below <paramref name="rearm"/> (the detector's threshold − hysteresis): the events' width.</summary>
+    public static double MedianWidth(double[] t, double[] v, double[] events, double rearm)
+    {
+        ArgumentNullException.ThrowIfNull(t);
+        ArgumentNullException.ThrowIfNull(v);
+        ArgumentNullException.ThrowIfNull(events);
+        var widths = new List<double>(events.Length);
+        var i = 0;
+        foreach (var e in events)
+        {
+            while (i < t.Length && t[i] < e)
+            {
+                i++;
+            }
+
+            var j = i;
+            while (j < t.Length && v[j] >= rearm)
+            {
+                j++;
+            }
+
+            if (j < t.Length && j > i)
+            {
+                widths.Add(t[j - 1] - e);
+            }
+        }
+
+        if (widths.Count == 0)
+        {
+            return Trajectory.TypicalStep(t);
+        }
+
+        widths.Sort();
+        return widths[widths.Count / 2];
+    }
+
+    /// <summary>Segment number of every sample.</summary>
+    public static int[] SegmentIndex(int n, int[] segmentStarts)
+    {
+        ArgumentNullException.ThrowIfNull(segmentStarts);
+        var seg = new int[n];
+        for (var k = 0; k < segmentStarts.Length; k++)
+        {
+            var s = segmentStarts[k];
+            var e = k + 1 < segmentStarts.Length ? segmentStarts[k + 1] : n;
+            for (var i = s; i < e; i++)
+            {
+                seg[i] = k;
+            }
+        }
+
+        return seg;
+    }
+
+    private readonly record struct Centre(double X, double Y, double Backward, double Spread);
+
+    /// <summary>Block means of the embedded orbit (blocks within one segment), at most <see cref="CoarsePoints"/> points.</summary>
+    private static (double[] X, double[] Y) CoarseOrbit(double[] v, List<int> idx, int delay, int[] segOf)
+    {
+        var block = Math.Max(1, (int)Math.Ceiling(idx.Count / (double)CoarsePoints));
+        var xs = new List<double>(CoarsePoints + 8);
+        var ys = new List<double>(CoarsePoints + 8);
+        double sx = 0, sy = 0;
+        var count = 0;
+        var seg = -1;
+        for (var k = 0; k < idx.Count; k++)
+        {
+            var i = idx[k];
+            if (segOf[i] != seg && count > 0)
+            {
+                xs.Add(sx / count);
+                ys.Add(sy / count);
+                xs.Add(double.NaN);
+                ys.Add(double.NaN);
+                sx = sy = 0;
+                count = 0;
+            }
+
+            seg = segOf[i];
+            sx += v[i];
+            sy += v[i - delay];
+            count++;
+            if (count == block)
+            {
+                xs.Add(sx / count);
+                ys.Add(sy / count);
+                sx = sy = 0;
+                count = 0;
+            }
+        }
+
+        if (count > 0)
+        {
+            xs.Add(sx / count);
+            ys.Add(sy / count);
+        }
+
+        return ([.. xs], [.. ys]);
+    }
+
+    /// <summary>
+    /// The grid point about which the orbit winds once per event, with a backward fraction within
+    /// <see cref="NearlyAsGood"/> of the least, that spreads the orbit's time most evenly over the angle (largest
+    /// entropy of the time-weighted histogram of the angle in <see cref="SpreadBins"/> bins): a point that sees the slow
+    /// stretch side-on, not along a ray.
+    /// </summary>
+    private static Centre? ChooseCentre(double[] x, double[] y, int expectedTurns)
+    {
+        double x0 = double.PositiveInfinity, x1 = double.NegativeInfinity, y0 = double.PositiveInfinity, y1 = double.NegativeInfinity;
+        for (var k = 0; k < x.Length; k++)
+        {
+            if (double.IsNaN(x[k]))
+            {
+                continue;
+            }
+
+            x0 = Math.Min(x0, x[k]);
+            x1 = Math.Max(x1, x[k]);
+            y0 = Math.Min(y0, y[k]);
+            y1 = Math.Max(y1, y[k]);
+        }
+
+        if (!(x1 > x0 && y1 > y0))
+        {
+            return null;
+        }
+
+        var hx = (x1 - x0) / (Grid + 1);
+        var hy = (y1 - y0) / (Grid + 1);
+        var candidates = new List<Centre>();
+        for (var a = 1; a <= Grid; a++)
+        {
+            for (var b = 1; b <= Grid; b++)
+            {
+                if (Score(x, y, x0 + (a * hx), y0 + (b * hy), expectedTurns) is { } c)
+                {
+                    candidates.Add(c);
+                }
+            }
+        }
+
+        if (Pick(candidates) is not { } coarse)
+        {
+            return null;
+        }
+
+        for (var a = -FineGrid / 2; a <= FineGrid / 2; a++)
+        {
+            for (var b = -FineGrid / 2; b <= FineGrid / 2; b++)
+            {
+                if (Score(x, y, coarse.X + (a * hx / (FineGrid / 2)), coarse.Y + (b * hy / (FineGrid / 2)), expectedTurns) is { } c)
+                {
+                    candidates.Add(c);
+                }
+            }
+        }
+
+        return Pick(candidates);
+    }
+
+    private static Centre? Pick(List<Centre> candidates)
+    {
+        if (candidates.Count == 0)
+        {
+            return null;
+        }
+
+        var least = candidates.Min(c => c.Backward);
+        return candidates.Where(c => c.Backward <= least + NearlyAsGood).MaxBy(c => c.Spread);
+    }
+
+    /// <summary>Backward fractions within this of the least are as good: among them the point that spreads the time most evenly over the angle wins.</summary>
+    private const double NearlyAsGood = 0.05;
+
+    /// <summary>Angle bins of the time-weighted histogram whose entropy measures how evenly a centre spreads the orbit's time.</summary>
+    private const int SpreadBins = 64;
+
+    private static Centre? Score(double[] x, double[] y, double cx, double cy, int expectedTurns)
+    {
+        double total = 0, forward = 0, backward = 0;
+        var prev = double.NaN;
+        var histogram = new int[SpreadBins];
+        var points = 0;
+        for (var k = 0; k < x.Length; k++)
+        {
+            if (double.IsNaN(x[k]))
+            {
+                prev = double.NaN;
+                continue;
+            }
+
+            var a = Math.Atan2(y[k] - cy, x[k] - cx);
+            histogram[Math.Clamp((int)((a + Math.PI) / (2 * Math.PI) * SpreadBins), 0, SpreadBins - 1)]++;
+            points++;
+            if (!double.IsNaN(prev))
+            {
+                var d = a - prev;
+                d -= 2 * Math.PI * Math.Round(d / (2 * Math.PI));
+                total += d;
+                if (d > 0)
+                {
+                    forward += d;
+                }
+                else
+                {
+                    backward -= d;
+                }
+            }
+
+            prev = a;
+        }
+
+        var turns = Math.Abs(total) / (2 * Math.PI);
+        if (Math.Abs(turns - expectedTurns) > (0.25 * expectedTurns) + 1)
+        {
+            return null;
+        }
+
+        var entropy = 0.0;
+        foreach (var h in histogram)
+        {
+            if (h > 0)
+            {
+                var p = h / (double)points;
+                entropy -= p * Math.Log(p);
+            }
+        }
+
+        var against = total >= 0 ? backward : forward;
+        return new Centre(cx, cy, against / (forward + backward), entropy);
+    }
+
+    /// <summary>Largest fall of the protophase below its running maximum over samples [from, to) (within segments).</summary>
+    private static double Backward(double[] phase, List<int> idx, int[] segOf, int from, int to)
+    {
+        var worst = 0.0;
+        var max = double.NegativeInfinity;
+        for (var k = from; k < to; k++)
+        {
+            if (k > from && segOf[idx[k]] != segOf[idx[k - 1]])
+            {
+                max = double.NegativeInfinity;
+            }
+
+            max = Math.Max(max, phase[k]);
+            worst = Math.Max(worst, max - phase[k]);
+        }
+
+        return worst;
+    }
+
+    private static void Drop(bool[] keep, int from, int to, double[] t, List<int> idx, List<(double, double)> leftOut)
+    {
+        if (to <= from)
+        {
+            return;
+        }
+
+        Array.Fill(keep, false, from, to - from);
+        leftOut.Add((t[idx[from]], t[idx[to - 1]]));
+    }
+
+    private static Diagnostic NoOrbit(SignalRecording signal, string why) => new(Severity.Warning, "no-signal-orbit",
+        $"column '{signal.SignalColumnName}' gives no protophase ({why}): the run keeps its periods from the events only, and the bottleneck route does not use it",
+        signal.File);
+}
