@@ -159,7 +159,13 @@ public static class PlanarComparer
 
         // Onset by simulation and by the fold of the equilibria.
         var simulated = PlanarOnset.BySimulation(problem, full);
-        var fold = simulated is null ? null : PlanarOnset.FoldNear(problem, full, simulated.RestX0, simulated.RestX1, simulated.SilentLab);
+        // The fold is sought from a rest state: that of the silent run nearest the onset (the bisection's silent end may
+        // be a cycle too slow to count, caught anywhere on it), else the bisection's.
+        var nearestSilent = simulated is null ? -1 : Enumerable.Range(0, runs.Count).Where(i => !outcomes[i].Fires && !outcomes[i].Failed)
+            .OrderBy(i => Math.Abs(runs[i].MuLab - simulated.Value)).DefaultIfEmpty(-1).First();
+        var fold = simulated is null ? null : nearestSilent >= 0
+            ? PlanarOnset.FoldNear(problem, full, outcomes[nearestSilent].X0, outcomes[nearestSilent].X1, runs[nearestSilent].MuLab)
+            : PlanarOnset.FoldNear(problem, full, simulated.RestX0, simulated.RestX1, simulated.SilentLab);
         var span = runs.Max(r => r.MuLab) - runs.Min(r => r.MuLab);
         var foldAgrees = simulated is not null && fold is not null && Math.Abs(fold.MuLab - simulated.Value) <= Math.Max(4 * simulated.HalfWidth, 1e-3 * span);
         if (simulated is null)

@@ -19,7 +19,7 @@ internal readonly record struct CycleOutcome(bool Fires, double Period, double L
 
 /// <summary>
 /// The long-run behaviour of a noise-free planar system at fixed μ, by adaptive Dormand–Prince 5(4) integration
-/// (<see cref="DormandPrince{TField}"/>, rtol 10⁻⁹). Local maxima and minima of the recorded variable are located
+/// (<see cref="DormandPrince{TField}"/>, rtol 10⁻⁸). Local maxima and minima of the recorded variable are located
 /// inside steps on the cubic Hermite interpolant of the step's end values and slopes (Hairer, Nørsett &amp; Wanner
 /// 1993, §II.6); the period is the interval between upward crossings of the level halfway between the last cycle's
 /// maximum and minimum (root of the same interpolant by bisection). The system fires when three successive intervals
@@ -33,7 +33,7 @@ internal static class PlanarCycle
 
     public static CycleOutcome Solve(PlanarModel.Field field, int observed, double x0, double x1, double timeCap)
     {
-        var dp = new DormandPrince<PlanarModel.Field>(field, 1e-9, 1e-12, timeCap / 200);
+        var dp = new DormandPrince<PlanarModel.Field>(field, 1e-8, 1e-11, timeCap / 200);
         dp.Reset(x0, x1, 0.0, timeCap * 1e-8);
         double Obs() => observed == 0 ? dp.X0 : dp.X1;
         double Slope() => observed == 0 ? dp.Rate.D0 : dp.Rate.D1;

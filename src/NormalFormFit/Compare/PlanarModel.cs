@@ -24,6 +24,7 @@ public sealed class PlanarModel
     public const string BadObservable = "bad-observable";
 
     private readonly int[][] parameterIndex;
+    private readonly Lazy<(Func<double, double, double, double[], double>, Func<double, double, double, double[], double>)> compiled;
 
     private PlanarModel(string text, string[] variables, ModelExpression[] equations, IReadOnlyList<string> parameters, int observed)
     {
@@ -33,6 +34,7 @@ public sealed class PlanarModel
         Parameters = parameters;
         Observed = observed;
         parameterIndex = [.. equations.Select(e => e.Parameters.Select(p => parameters.ToList().IndexOf(p)).ToArray())];
+        compiled = new(() => (equations[0].CompileState(), equations[1].CompileState()));
     }
 
     /// <summary>The system as the user wrote it.</summary>
@@ -168,18 +170,17 @@ public sealed class PlanarModel
     /// <summary>A field of this system for one thread, at parameter values (order of <see cref="Parameters"/>) and μ_model.</summary>
     public Field CreateField(double[] parameters, double mu) => new(this, parameters, mu);
 
-    /// <summary>The system's rates at fixed parameters and μ, with its own scratch space (one per thread).</summary>
+    /// <summary>The system's rates at fixed parameters and μ (compiled right-hand sides; safe to share between threads only without setting <see cref="Mu"/>).</summary>
     public sealed class Field : Numerics.IPlanarField
     {
-        private readonly ModelExpression.Evaluator first;
-        private readonly ModelExpression.Evaluator second;
+        private readonly Func<double, double, double, double[], double> first;
+        private readonly Func<double, double, double, double[], double> second;
         private readonly double[] p0;
         private readonly double[] p1;
 
         internal Field(PlanarModel model, double[] parameters, double mu)
         {
-            first = model.Equations[0].CreateEvaluator();
-            second = model.Equations[1].CreateEvaluator();
+            (first, second) = model.compiled.Value;
             p0 = [.. model.parameterIndex[0].Select(i => parameters[i])];
             p1 = [.. model.parameterIndex[1].Select(i => parameters[i])];
             Mu = mu;
@@ -191,8 +192,8 @@ public sealed class PlanarModel
         /// <inheritdoc/>
         public void Rate(double x0, double x1, out double rate0, out double rate1)
         {
-            rate0 = first.EvaluateState(x0, x1, Mu, p0);
-            rate1 = second.EvaluateState(x0, x1, Mu, p1);
+            rate0 = first(x0, x1, Mu, p0);
+            rate1 = second(x0, x1, Mu, p1);
         }
     }
 

@@ -18,7 +18,7 @@ internal sealed record Fold(double MuModel, double MuLab, double X0, double X1);
 /// <summary>
 /// Onset of a planar system two ways. <b>By simulation</b>: the runs' μ_lab are classified firing or silent by
 /// <see cref="PlanarCycle"/>; the first change from silent to firing (extended below the runs with doubling steps when
-/// every run fires) is bisected to a width of 10⁻⁷ of the runs' span (at most 40 halvings). "Firing" means a cycle
+/// every run fires) is bisected to a width of 10⁻⁵ of the runs' span (at most 40 halvings). "Firing" means a cycle
 /// settled within the time cap, so a cycle slower than about a quarter of the cap is silent: the onset found this way
 /// lies above the true one by about (the cap's quarter)⁻² in the square-root law of a saddle-node on the circle.
 /// <b>By the fold of the equilibria</b> (for a saddle-node on the invariant circle): Newton's method on
@@ -84,7 +84,7 @@ internal static class PlanarOnset
             return null;
         }
 
-        for (var k = 0; k < 40 && Math.Abs(hi - lo) > 1e-7 * span; k++)
+        for (var k = 0; k < 40 && Math.Abs(hi - lo) > 1e-5 * span; k++)
         {
             var m = 0.5 * (lo + hi);
             var o = problem.Cycle(full, m);

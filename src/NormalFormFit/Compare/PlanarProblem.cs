@@ -8,7 +8,7 @@ internal sealed record PlanarRun(RunResult Source, double MuLab, bool Fires, dou
 /// <summary>
 /// The fit of a planar system to runs recorded as one signal: residuals r = (ν_model − ν)/SE_ν of the firing runs'
 /// frequencies ν = 1/T (SE_ν = SE_T/T²), where ν_model is the frequency of the system's limit cycle at
-/// μ_model = c₀ + c₁·μ_lab (<see cref="PlanarCycle"/>; 0 where it does not fire). Jacobian by central differences
+/// μ_model = c₀ + c₁·μ_lab (<see cref="PlanarCycle"/>; 0 where it does not fire). Jacobian by forward differences
 /// (steps 10⁻⁵·max(|q|, 0.1)). Parameter vector: the system's parameters, then c₀, c₁; the free ones are fitted.
 /// </summary>
 internal sealed class PlanarProblem
@@ -72,12 +72,34 @@ internal sealed class PlanarProblem
     /// <summary>μ_model of a lab value at the full parameters.</summary>
     public double MuModel(double[] full, double muLab) => full[ParameterCount] + (full[ParameterCount + 1] * muLab);
 
-    /// <summary>The noise-free behaviour at the full parameters and a lab μ.</summary>
+    /// <summary>
+    /// The noise-free behaviour at the full parameters and a lab μ. The integration starts at the given initial state,
+    /// or, when the last integration at this μ_lab settled on a cycle, where that one ended (on or near the cycle, so
+    /// that the small parameter steps of a fit do not repeat the transient). Not thread-safe: one problem per thread.
+    /// </summary>
     public CycleOutcome Cycle(double[] full, double muLab)
     {
         var field = Model.CreateField(full[..ParameterCount], MuModel(full, muLab));
-        return PlanarCycle.Solve(field, Model.Observed, Start0, Start1, TimeCap);
+        var (x0, x1) = warm.TryGetValue(muLab, out var w) ? w : (Start0, Start1);
+        var outcome = PlanarCycle.Solve(field, Model.Observed, x0, x1, TimeCap);
+        if (outcome.Fires)
+        {
+            warm[muLab] = (outcome.X0, outcome.X1);
+        }
+        else if (warm.Remove(muLab))
+        {
+            // A cycle lost from a warm start is checked from the initial state, as every silent verdict is.
+            outcome = PlanarCycle.Solve(field, Model.Observed, Start0, Start1, TimeCap);
+            if (outcome.Fires)
+            {
+                warm[muLab] = (outcome.X0, outcome.X1);
+            }
+        }
+
+        return outcome;
     }
+
+    private readonly Dictionary<double, (double, double)> warm = [];
 
     /// <summary>Residuals of the firing runs at the full parameters; false when an integration broke down.</summary>
     public bool Residuals(double[] full, double[] r)
@@ -108,7 +130,6 @@ internal sealed class PlanarProblem
         }
 
         var plus = new double[Points];
-        var minus = new double[Points];
         for (var u = 0; u < FreeCount; u++)
         {
             var step = 1e-5 * Math.Max(Math.Abs(free[u]), 0.1);
@@ -119,15 +140,9 @@ internal sealed class PlanarProblem
                 return false;
             }
 
-            q[u] = free[u] - step;
-            if (!Residuals(Expand(q), minus))
-            {
-                return false;
-            }
-
             for (var i = 0; i < Points; i++)
             {
-                jacobian[i, u] = (plus[i] - minus[i]) / (2 * step);
+                jacobian[i, u] = (plus[i] - residuals[i]) / step;
             }
         }
 
