@@ -12,7 +12,9 @@ internal static class CompareCommand
     public static Command Create(TextWriter stdout, TextWriter stderr)
     {
         var manifest = new Argument<string>("manifest") { Description = "CSV with header 'file,param' naming one run file per parameter value" };
-        var model = new Option<string>("--model") { Description = "the reduced model θ̇ = f(theta, mu; parameters), e.g. 'mu - a*sin(theta)' (see docs/model-expressions.md)", Required = true };
+        var model = new Option<string>("--model") { Description = "the reduced model θ̇ = f(theta, mu; parameters), e.g. 'mu - a*sin(theta)', or a planar system of two equations \"v' = …; w' = …\" with --observe (see docs/model-expressions.md)", Required = true };
+        var observe = new Option<string?>("--observe") { Description = "for a planar system: the variable the runs recorded as their signal, e.g. v" };
+        var initial = new Option<string?>("--initial") { Description = "for a planar system: the state every simulation starts from, e.g. v=-40,w=0 (default all 0)" };
         var start = new Option<string?>("--start") { Description = "starting values of parameters, e.g. a=0.8,k=0.1 (others start at 1)" };
         var fix = new Option<string?>("--fix") { Description = "hold parameters at values, e.g. k=0" };
         var c0 = new Option<double?>("--c0") { Description = "hold the offset of μ_model = c0 + c1·μ_lab at this value" };
@@ -28,7 +30,7 @@ internal static class CompareCommand
         var reading = new ReadingOptions();
         var cmd = new Command("compare", "Check a reduced phase model against the runs: fitted parameters, onset, verdict, worst runs and phase regions")
         {
-            manifest, model, start, fix, c0, c1, noPeriods, replicates, pilot, seed, json, outDir, quiet, verbose,
+            manifest, model, observe, initial, start, fix, c0, c1, noPeriods, replicates, pilot, seed, json, outDir, quiet, verbose,
         };
         reading.AddTo(cmd);
         cmd.SetAction(pr =>
@@ -38,17 +40,53 @@ internal static class CompareCommand
                 return badColumn;
             }
 
-            var parsed = ModelExpression.Parse(pr.GetValue(model)!);
-            if (parsed.Value is null)
+            var text = pr.GetValue(model)!;
+            PlanarModel? system = null;
+            ModelExpression? phaseModel = null;
+            if (PlanarModel.LooksLikeSystem(text))
             {
-                Report(stderr, parsed.Diagnostics, pr.GetValue(model)!);
-                return ExitCodes.BadInput;
+                var planar = PlanarModel.Parse(text, pr.GetValue(observe));
+                if (planar.Value is null)
+                {
+                    Report(stderr, planar.Diagnostics, text);
+                    return ExitCodes.BadInput;
+                }
+
+                system = planar.Value;
+                if (pr.GetValue(outDir) is not null)
+                {
+                    stderr.WriteLine("nffit: usage: --out: the report folder is not written for a planar system yet; use --json FILE for the full result");
+                    return ExitCodes.BadInput;
+                }
+            }
+            else
+            {
+                if (pr.GetValue(observe) is not null || pr.GetValue(initial) is not null)
+                {
+                    stderr.WriteLine($"nffit: usage: {(pr.GetValue(observe) is not null ? "--observe" : "--initial")} belongs to a planar system (two equations v' = …; w' = …), but --model is a phase model θ̇ = f(theta, mu): leave it out, or write the model as a system");
+                    return ExitCodes.BadInput;
+                }
+
+                var parsed = ModelExpression.Parse(text);
+                if (parsed.Value is null)
+                {
+                    Report(stderr, parsed.Diagnostics, text);
+                    return ExitCodes.BadInput;
+                }
+
+                var missing = ModelRequirements.Check(parsed.Value).Where(d => d.Severity == Severity.Error).ToList();
+                if (missing.Count > 0)
+                {
+                    Report(stderr, missing, text);
+                    return ExitCodes.BadInput;
+                }
+
+                phaseModel = parsed.Value;
             }
 
-            var missing = ModelRequirements.Check(parsed.Value).Where(d => d.Severity == Severity.Error).ToList();
-            if (missing.Count > 0)
+            (double, double)? initialState = null;
+            if (system is not null && !TryInitialState(pr.GetValue(initial), system, stderr, out initialState))
             {
-                Report(stderr, missing, pr.GetValue(model)!);
                 return ExitCodes.BadInput;
             }
 
@@ -82,7 +120,9 @@ internal static class CompareCommand
                 PilotReplicates = pr.GetValue(pilot),
                 Seed = pr.GetValue(seed),
             };
-            return Execute(pr.GetValue(manifest)!, parsed.Value, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr, pr.GetValue(outDir), analyzeOptions);
+            return system is not null
+                ? ExecuteSystem(pr.GetValue(manifest)!, system, initialState, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr, analyzeOptions)
+                : Execute(pr.GetValue(manifest)!, phaseModel!, options, pr.GetValue(json), pr.GetValue(quiet), stdout, stderr, pr.GetValue(outDir), analyzeOptions);
         });
         return cmd;
     }
@@ -130,6 +170,96 @@ internal static class CompareCommand
         }
 
         return ExitCodes.Ok;
+    }
+
+    /// <summary>Compares a planar system with the runs of a manifest (signal recordings): text, or JSON as for a phase model.</summary>
+    internal static int ExecuteSystem(string manifestPath, PlanarModel system, (double, double)? initial, CompareOptions options, string? jsonPath, bool quiet, TextWriter stdout, TextWriter stderr, AnalyzeOptions? analyzeOptions = null)
+    {
+        var outputs = PlannedOutput.OfReport(null, jsonPath);
+        if (CommandGuard.ManifestCommand(manifestPath, outputs, stderr) is { } refused)
+        {
+            return refused;
+        }
+
+        analyzeOptions ??= AnalyzeOptions.Default;
+        var analysis = ManifestAnalyzer.Analyze(manifestPath, analyzeOptions);
+        if (analysis.Value is null)
+        {
+            Report(stderr, analysis.Diagnostics, null);
+            return analysis.Diagnostics.Any(e => InsufficientData.Codes.Contains(e.Code) || RunSetSanity.Codes.Contains(e.Code)) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+        }
+
+        var runs = new AnalysedRunSet(new RunSet(analysis.Value.Runs, analysis.Value.ParamUnits), analyzeOptions);
+        var result = PlanarComparer.Compare(runs, system, options, initial);
+        if (result.Value is null)
+        {
+            Report(stderr, result.Diagnostics, null);
+            return result.Diagnostics.Any(d => d.Code is CompareFailures.TooFewPoints or CompareFailures.CannotFit or CompareFailures.NoAnswer) ? ExitCodes.CannotAnswer : ExitCodes.BadInput;
+        }
+
+        var c = result.Value;
+        if (jsonPath is not null && !CommandOutput.TryWriteJson(jsonPath, s => ComparisonJson.Write(c, s, NffitApp.Version), stdout, stderr))
+        {
+            return ExitCodes.BadInput;
+        }
+
+        if (jsonPath != "-" && !quiet)
+        {
+            stdout.Write(SystemText(c, system));
+        }
+
+        return ExitCodes.Ok;
+    }
+
+    /// <summary>The comparison of a planar system as plain text: parameters, onset, verdict, worst runs by period, diagnostics, caution.</summary>
+    internal static string SystemText(ModelComparison c, PlanarModel system)
+    {
+        var ic = CultureInfo.InvariantCulture;
+        var w = new StringWriter(ic);
+        w.WriteLine($"system  {string.Join("; ", system.Text.Split(['\n', ';'], StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries))}");
+        w.WriteLine($"recorded  {system.Variables[system.Observed]} (events and periods of the signal)");
+        foreach (var p in c.Parameters.Append(c.Offset).Append(c.Scale))
+        {
+            w.WriteLine(p.Fixed
+                ? string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  (held)")
+                : string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  ± {p.StandardError:G2}   95% [{p.Ci95.Low:G6}, {p.Ci95.High:G6}]"));
+        }
+
+        w.WriteLine(string.Create(ic, $"onset  μ_lab = {c.Onset.Value:G6} ± {c.Onset.StandardError:G2}   95% [{c.OnsetCi95.Low:G6}, {c.OnsetCi95.High:G6}]  (where the limit cycle appears)"));
+        var replicates = c.ReplicateStatistics.Count + c.FailedReplicates;
+        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {c.Statistic:G4}; {replicates} simulated from the fit: mean {c.Expected:G4}, largest {(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN):G4}; p = {c.PValue:G2})"));
+        w.WriteLine("worst runs (squared period residual over its mean in the simulated replicates; about 1 is a good fit):");
+        foreach (var r in c.WorstRuns)
+        {
+            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {r.Param:G6}  {r.Ratio:F2}  model frequency {(r.PeriodResidual > 0 ? "too high" : "too low")} by {Math.Abs(r.PeriodResidual):F2} (replicate RMS)"));
+        }
+
+        foreach (var d in c.Diagnostics)
+        {
+            w.WriteLine(d.ToString());
+        }
+
+        w.WriteLine(TextReport.Caution);
+        return w.ToString();
+    }
+
+    /// <summary>Parses <c>--initial v=…,w=…</c> for the system's variables (a variable not named starts at 0).</summary>
+    private static bool TryInitialState(string? text, PlanarModel system, TextWriter stderr, out (double, double)? state)
+    {
+        state = null;
+        if (!TryAssignments(text, "--initial", stderr, out var values))
+        {
+            return false;
+        }
+
+        foreach (var name in values.Keys.Where(n => !system.Variables.Contains(n)))
+        {
+            stderr.WriteLine($"nffit: usage: --initial: '{name}' is not a variable of the system; its variables are {system.Variables[0]} and {system.Variables[1]}");
+            return false;
+        }
+
+        state = (values.GetValueOrDefault(system.Variables[0]), values.GetValueOrDefault(system.Variables[1]));
+        return true;
     }
 
     /// <summary>Parses <c>name=value,name=value</c> (invariant culture); one message on the first bad item.</summary>
@@ -190,7 +320,8 @@ internal static class CompareCommand
             stderr.WriteLine($"nffit: {d}");
             if (expression is not null && d.Column is { } col)
             {
-                stderr.WriteLine($"nffit:   {expression}");
+                var lines = expression.Split('\n');
+                stderr.WriteLine($"nffit:   {lines[Math.Clamp((d.Line ?? 1) - 1, 0, lines.Length - 1)].TrimEnd('\r')}");
                 stderr.WriteLine($"nffit:   {new string(' ', Math.Max(col - 1, 0))}^");
             }
         }

@@ -19,7 +19,7 @@ namespace NormalFormFit.Compare;
 internal sealed class ExpressionParser
 {
     /// <summary>The functions of the language.</summary>
-    public static readonly string[] Functions = ["sin", "cos", "tan", "exp", "log", "sqrt", "abs"];
+    public static readonly string[] Functions = ["sin", "cos", "tan", "exp", "log", "sqrt", "abs", "tanh", "cosh"];
 
     private const string ErrorCode = "bad-expression";
     private const int MaxNesting = 200;
@@ -32,13 +32,18 @@ internal sealed class ExpressionParser
     private int depth;
     private int maxDepth;
     private int nesting;
+    private readonly IReadOnlyList<string>? variables;
+    private readonly int columnOffset;
     private bool usesMu;
     private bool usesTheta;
+    private int usesVariables;
 
-    private ExpressionParser(string text, string source)
+    private ExpressionParser(string text, string source, IReadOnlyList<string>? variables, int columnOffset)
     {
         this.text = text;
         this.source = source;
+        this.variables = variables;
+        this.columnOffset = columnOffset;
     }
 
     internal sealed record Result(
@@ -47,17 +52,30 @@ internal sealed class ExpressionParser
         IReadOnlyList<string> Parameters,
         bool UsesMu,
         bool UsesTheta,
-        Diagnostic? Error);
-
-    public static Result Parse(string text, string source)
+        Diagnostic? Error)
     {
-        var p = new ExpressionParser(text, source);
+        /// <summary>Bit k set when the system variable k is used (right-hand sides of a planar system only).</summary>
+        public int UsesVariables { get; init; }
+    }
+
+    public static Result Parse(string text, string source) => Parse(text, source, null, 0);
+
+    /// <summary>
+    /// Parses <paramref name="text"/>; with <paramref name="variables"/>, the right-hand side of one equation of a planar
+    /// system, where those names are the state variables and <c>theta</c> has no meaning. Error columns are shifted by
+    /// <paramref name="columnOffset"/> (the right-hand side's place in the whole line).
+    /// </summary>
+    public static Result Parse(string text, string source, IReadOnlyList<string>? variables, int columnOffset)
+    {
+        var p = new ExpressionParser(text, source, variables, columnOffset);
         try
         {
             p.SkipBlanks();
             if (p.pos >= text.Length)
             {
-                throw p.Fail(p.pos, "the expression is empty; write the phase velocity, e.g. mu - a*sin(theta)");
+                throw p.Fail(p.pos, variables is null
+                    ? "the expression is empty; write the phase velocity, e.g. mu - a*sin(theta)"
+                    : "the right-hand side is empty; write the rate of change after '=', e.g. v' = mu + v - v^3/3 - w");
             }
 
             p.Sum();
@@ -67,7 +85,7 @@ internal sealed class ExpressionParser
                 throw p.Fail(p.pos, $"expected an operator (+ - * / ^) or the end of the expression but found {p.Describe(p.pos)}");
             }
 
-            return new Result([.. p.code], p.maxDepth, p.parameters, p.usesMu, p.usesTheta, null);
+            return new Result([.. p.code], p.maxDepth, p.parameters, p.usesMu, p.usesTheta, null) { UsesVariables = p.usesVariables };
         }
         catch (SyntaxError e)
         {
@@ -273,6 +291,19 @@ internal sealed class ExpressionParser
             throw Fail(pos, $"expected '(' after the function name '{name}' but found {Describe(pos)}");
         }
 
+        var variable = variables is null ? -1 : IndexOf(variables, name);
+        if (variable >= 0)
+        {
+            usesVariables |= 1 << variable;
+            Emit(new Instruction(OpCode.Variable, Index: variable), 1);
+            return;
+        }
+
+        if (variables is not null && name is "theta" or "θ")
+        {
+            throw Fail(start, $"'theta' is the phase of a one-equation phase model; in a system the variables are {string.Join(" and ", variables)}");
+        }
+
         switch (name)
         {
             case "theta" or "θ":
@@ -299,17 +330,30 @@ internal sealed class ExpressionParser
         }
     }
 
+    private static int IndexOf(IReadOnlyList<string> names, string name)
+    {
+        for (var i = 0; i < names.Count; i++)
+        {
+            if (names[i] == name)
+            {
+                return i;
+            }
+        }
+
+        return -1;
+    }
+
     private void Close(int open)
     {
         SkipBlanks();
         if (pos >= text.Length)
         {
-            throw Fail(pos, $"expected ')' to close the '(' at column {open + 1} but the expression ends");
+            throw Fail(pos, $"expected ')' to close the '(' at column {open + 1 + columnOffset} but the expression ends");
         }
 
         if (text[pos] != ')')
         {
-            throw Fail(pos, $"expected ')' to close the '(' at column {open + 1} but found {Describe(pos)}");
+            throw Fail(pos, $"expected ')' to close the '(' at column {open + 1 + columnOffset} but found {Describe(pos)}");
         }
 
         pos++;
@@ -379,10 +423,10 @@ internal sealed class ExpressionParser
         new(new Diagnostic(
             Severity.Error,
             ErrorCode,
-            string.Create(CultureInfo.InvariantCulture, $"column {at + 1}: {message}"),
+            string.Create(CultureInfo.InvariantCulture, $"column {at + 1 + columnOffset}: {message}"),
             source,
             Line: null,
-            Column: at + 1));
+            Column: at + 1 + columnOffset));
 
     private sealed class SyntaxError(Diagnostic diagnostic) : Exception(diagnostic.Message)
     {

@@ -19,8 +19,9 @@ public sealed class ModelExpression
     private readonly Instruction[] program;
     private readonly int maxDepth;
 
-    private ModelExpression(string text, Instruction[] program, int maxDepth, IReadOnlyList<string> parameters, bool usesMu, bool usesTheta)
+    private ModelExpression(string text, Instruction[] program, int maxDepth, IReadOnlyList<string> parameters, bool usesMu, bool usesTheta, int usesVariables = 0)
     {
+        UsesVariables = usesVariables;
         Text = text;
         this.program = program;
         this.maxDepth = maxDepth;
@@ -40,6 +41,9 @@ public sealed class ModelExpression
 
     /// <summary>True when the expression contains <c>theta</c>.</summary>
     public bool UsesTheta { get; }
+
+    /// <summary>For the right-hand side of a planar system's equation: bit k set when state variable k appears.</summary>
+    public int UsesVariables { get; }
 
     /// <summary>Longest expression, in characters (docs/model-expressions.md).</summary>
     public const int MaxLength = 1000;
@@ -82,6 +86,86 @@ public sealed class ModelExpression
             []);
     }
 
+    /// <summary>
+    /// Parses the right-hand side of one equation of a planar system (<see cref="PlanarModel"/>), in which the names
+    /// <paramref name="variables"/> are the state variables. Error columns count from the start of the whole line
+    /// (<paramref name="columnOffset"/> is where the right-hand side starts in it, 0-based).
+    /// </summary>
+    internal static Loaded<ModelExpression> ParseRightHandSide(string text, IReadOnlyList<string> variables, int columnOffset, string source)
+    {
+        var parsed = ExpressionParser.Parse(text, source, variables, columnOffset);
+        if (parsed.Program is null)
+        {
+            return Loaded.Fail<ModelExpression>(parsed.Error!);
+        }
+
+        if (parsed.Program.Length > MaxNodes)
+        {
+            return Loaded.Fail<ModelExpression>(new Diagnostic(Severity.Error, "expression-too-long",
+                $"a right-hand side has {parsed.Program.Length} operations, more than the {MaxNodes} allowed (docs/model-expressions.md); write it shorter", source));
+        }
+
+        return new Loaded<ModelExpression>(
+            new ModelExpression(text, parsed.Program, parsed.MaxDepth, parsed.Parameters, parsed.UsesMu, parsed.UsesTheta, parsed.UsesVariables), []);
+    }
+
+    /// <summary>
+    /// The right-hand side compiled to a delegate f(x₀, x₁, μ, p) (System.Linq.Expressions: the postfix program turned
+    /// into an expression tree of the same arithmetic, then compiled), for the millions of evaluations of an
+    /// integration. Same operations in the same order as <see cref="Evaluator.EvaluateState"/>, so the same values.
+    /// </summary>
+    internal Func<double, double, double, double[], double> CompileState()
+    {
+        var x0 = System.Linq.Expressions.Expression.Parameter(typeof(double), "x0");
+        var x1 = System.Linq.Expressions.Expression.Parameter(typeof(double), "x1");
+        var mu = System.Linq.Expressions.Expression.Parameter(typeof(double), "mu");
+        var p = System.Linq.Expressions.Expression.Parameter(typeof(double[]), "p");
+        var stack = new Stack<System.Linq.Expressions.Expression>();
+        System.Linq.Expressions.Expression Call(string name, params System.Linq.Expressions.Expression[] args) =>
+            System.Linq.Expressions.Expression.Call(typeof(Math).GetMethod(name, [.. args.Select(_ => typeof(double))])!, args);
+        foreach (var ins in program)
+        {
+            switch (ins.Op)
+            {
+                case OpCode.Number:
+                    stack.Push(System.Linq.Expressions.Expression.Constant(ins.Value));
+                    break;
+                case OpCode.Theta:
+                    stack.Push(x0);
+                    break;
+                case OpCode.Variable:
+                    stack.Push(ins.Index == 0 ? x0 : x1);
+                    break;
+                case OpCode.Mu:
+                    stack.Push(mu);
+                    break;
+                case OpCode.Parameter:
+                    stack.Push(System.Linq.Expressions.Expression.ArrayIndex(p, System.Linq.Expressions.Expression.Constant(ins.Index)));
+                    break;
+                case OpCode.Negate:
+                    stack.Push(System.Linq.Expressions.Expression.Negate(stack.Pop()));
+                    break;
+                case >= OpCode.Add and <= OpCode.Power:
+                    var b = stack.Pop();
+                    var a = stack.Pop();
+                    stack.Push(ins.Op switch
+                    {
+                        OpCode.Add => System.Linq.Expressions.Expression.Add(a, b),
+                        OpCode.Subtract => System.Linq.Expressions.Expression.Subtract(a, b),
+                        OpCode.Multiply => System.Linq.Expressions.Expression.Multiply(a, b),
+                        OpCode.Divide => System.Linq.Expressions.Expression.Divide(a, b),
+                        _ => Call(nameof(Math.Pow), a, b),
+                    });
+                    break;
+                default:
+                    stack.Push(Call(ins.Op.ToString(), stack.Pop()));
+                    break;
+            }
+        }
+
+        return System.Linq.Expressions.Expression.Lambda<Func<double, double, double, double[], double>>(stack.Pop(), x0, x1, mu, p).Compile();
+    }
+
     /// <summary>f(θ, μ; p).</summary>
     /// <param name="theta">Phase θ.</param>
     /// <param name="mu">Model parameter μ.</param>
@@ -121,7 +205,19 @@ public sealed class ModelExpression
         /// <param name="parameters">Values in the order of <see cref="Parameters"/>.</param>
         /// <param name="gradient">Empty, or P + 1 slots to receive the derivatives.</param>
         /// <returns>f.</returns>
-        public double Evaluate(double theta, double mu, ReadOnlySpan<double> parameters, Span<double> gradient)
+        public double Evaluate(double theta, double mu, ReadOnlySpan<double> parameters, Span<double> gradient) =>
+            Run(theta, 0.0, mu, parameters, gradient);
+
+        /// <summary>The right-hand side of one equation of a planar system at state (<paramref name="x0"/>, <paramref name="x1"/>), without derivatives.</summary>
+        /// <param name="x0">The system's first variable.</param>
+        /// <param name="x1">The system's second variable.</param>
+        /// <param name="mu">Model parameter μ.</param>
+        /// <param name="parameters">Values in the order of <see cref="Parameters"/>.</param>
+        /// <returns>The rate.</returns>
+        public double EvaluateState(double x0, double x1, double mu, ReadOnlySpan<double> parameters) =>
+            Run(x0, x1, mu, parameters, []);
+
+        private double Run(double theta, double second, double mu, ReadOnlySpan<double> parameters, Span<double> gradient)
         {
             var pCount = owner.Parameters.Count;
             if (parameters.Length != pCount)
@@ -154,6 +250,9 @@ public sealed class ModelExpression
                         break;
                     case OpCode.Mu:
                         Push(ref sp, mu, pCount, withGradient, g);
+                        break;
+                    case OpCode.Variable:
+                        Push(ref sp, ins.Index == 0 ? theta : second, -1, withGradient, g);
                         break;
                     case OpCode.Parameter:
                         Push(ref sp, parameters[ins.Index], ins.Index, withGradient, g);
@@ -248,6 +347,14 @@ public sealed class ModelExpression
                 case OpCode.Abs:
                     value = Math.Abs(a);
                     slope = Math.Sign(a);
+                    break;
+                case OpCode.Tanh:
+                    value = Math.Tanh(a);
+                    slope = 1.0 - (value * value);
+                    break;
+                case OpCode.Cosh:
+                    value = Math.Cosh(a);
+                    slope = Math.Sinh(a);
                     break;
                 default:
                     throw new InvalidOperationException($"Not a unary operation: {op}.");
@@ -344,6 +451,9 @@ public sealed class ModelExpression
         Log,
         Sqrt,
         Abs,
+        Tanh,
+        Cosh,
+        Variable,
     }
 
     internal readonly record struct Instruction(OpCode Op, double Value = 0.0, int Index = -1)
@@ -353,6 +463,7 @@ public sealed class ModelExpression
             OpCode.Number => Value.ToString("R", CultureInfo.InvariantCulture),
             OpCode.Theta => "theta",
             OpCode.Mu => "mu",
+            OpCode.Variable => string.Create(CultureInfo.InvariantCulture, $"x{Index}"),
             OpCode.Parameter => parameters[Index],
             OpCode.Negate => "neg",
             OpCode.Add => "+",
