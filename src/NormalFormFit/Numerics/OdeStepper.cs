@@ -10,8 +10,15 @@ internal interface IPlanarField
     void Rate(double x0, double x1, out double rate0, out double rate1);
 }
 
+/// <summary>An autonomous vector field ẋ = F(x) in any number of variables (a conductance-based neuron at a fixed current).</summary>
+internal interface IVectorField
+{
+    /// <summary>F(<paramref name="x"/>) into <paramref name="rate"/> (the same length).</summary>
+    void Rate(ReadOnlySpan<double> x, Span<double> rate);
+}
+
 /// <summary>
-/// Fixed-step integrators for <see cref="IPlanarField"/>: the classical fourth-order Runge–Kutta step (Hairer, Nørsett
+/// Fixed-step integrators for <see cref="IPlanarField"/> and <see cref="IVectorField"/>: the classical fourth-order Runge–Kutta step (Hairer, Nørsett
 /// &amp; Wanner, Solving Ordinary Differential Equations I, 2nd ed., 1993, §II.1) and the Euler–Maruyama step for
 /// dx = F(x) dt + dW with additive noise (Kloeden &amp; Platen, Numerical Solution of Stochastic Differential
 /// Equations, 1992; strong order 1 for additive noise).
@@ -33,6 +40,46 @@ internal static class OdeStepper
         f.Rate(x0 + (h * k30), x1 + (h * k31), out var k40, out var k41);
         x0 += h / 6.0 * (k10 + (2.0 * k20) + (2.0 * k30) + k40);
         x1 += h / 6.0 * (k11 + (2.0 * k21) + (2.0 * k31) + k41);
+    }
+
+    /// <summary>One classical RK4 step of size <paramref name="h"/> for a field in up to eight variables, in place.</summary>
+    public static void RungeKutta4<TField>(TField f, double h, Span<double> x)
+        where TField : IVectorField
+    {
+        var n = x.Length;
+        if (n > 8)
+        {
+            throw new ArgumentException("at most eight variables", nameof(x));
+        }
+
+        Span<double> k1 = stackalloc double[n];
+        Span<double> k2 = stackalloc double[n];
+        Span<double> k3 = stackalloc double[n];
+        Span<double> k4 = stackalloc double[n];
+        Span<double> tmp = stackalloc double[n];
+        f.Rate(x, k1);
+        for (var i = 0; i < n; i++)
+        {
+            tmp[i] = x[i] + (0.5 * h * k1[i]);
+        }
+
+        f.Rate(tmp, k2);
+        for (var i = 0; i < n; i++)
+        {
+            tmp[i] = x[i] + (0.5 * h * k2[i]);
+        }
+
+        f.Rate(tmp, k3);
+        for (var i = 0; i < n; i++)
+        {
+            tmp[i] = x[i] + (h * k3[i]);
+        }
+
+        f.Rate(tmp, k4);
+        for (var i = 0; i < n; i++)
+        {
+            x[i] += h / 6.0 * (k1[i] + (2.0 * k2[i]) + (2.0 * k3[i]) + k4[i]);
+        }
     }
 
     /// <summary>

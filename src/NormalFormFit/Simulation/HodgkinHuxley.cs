@@ -1,3 +1,5 @@
+using NormalFormFit.Numerics;
+
 namespace NormalFormFit.Simulation;
 
 /// <summary>
@@ -102,35 +104,11 @@ public sealed record HodgkinHuxley
         return vs;
     }
 
-    private void Step(double current, double h, double[] s)
+    private void Step(double current, double h, double[] s) => OdeStepper.RungeKutta4(new AtCurrent(this, current), h, s.AsSpan());
+
+    /// <summary>The model at a fixed injected current, as a field for <see cref="OdeStepper"/>.</summary>
+    private readonly record struct AtCurrent(HodgkinHuxley Model, double Current) : IVectorField
     {
-        Span<double> k1 = stackalloc double[4];
-        Span<double> k2 = stackalloc double[4];
-        Span<double> k3 = stackalloc double[4];
-        Span<double> k4 = stackalloc double[4];
-        Span<double> tmp = stackalloc double[4];
-        Derivatives(current, s, k1);
-        for (var i = 0; i < 4; i++)
-        {
-            tmp[i] = s[i] + (0.5 * h * k1[i]);
-        }
-
-        Derivatives(current, tmp, k2);
-        for (var i = 0; i < 4; i++)
-        {
-            tmp[i] = s[i] + (0.5 * h * k2[i]);
-        }
-
-        Derivatives(current, tmp, k3);
-        for (var i = 0; i < 4; i++)
-        {
-            tmp[i] = s[i] + (h * k3[i]);
-        }
-
-        Derivatives(current, tmp, k4);
-        for (var i = 0; i < 4; i++)
-        {
-            s[i] += h / 6 * (k1[i] + (2 * k2[i]) + (2 * k3[i]) + k4[i]);
-        }
+        public void Rate(ReadOnlySpan<double> x, Span<double> rate) => Model.Derivatives(Current, x, rate);
     }
 }
