@@ -30,7 +30,7 @@ public sealed record SignalOrbit(
 /// <remarks>
 /// <para><b>Orbit.</b> The delay coordinates (s(t), s(t − τ)) of one observable of a system on a limit cycle trace a
 /// closed curve that is a smooth image of the cycle for generic τ (Takens 1981, "Detecting strange attractors in
-/// turbulence", Lecture Notes in Mathematics 898:366). τ = <see cref="DelayFraction"/> × the events' median width (time
+/// turbulence", in Dynamical Systems and Turbulence, Springer, vol. 898, pp. 366–381). τ = <see cref="DelayFraction"/> × the events' median width (time
 /// from the event until the signal is back below the threshold − hysteresis of the detector), in samples: the upstroke and the downstroke of a spike then lie apart and the spike
 /// embeds as a loop. The first minimum of the average mutual information (Fraser &amp; Swinney 1986) was tried and is
 /// not used: on Morris–Lecar sweeps it fell at 7–127 ms, longer than the 14 ms spike, which then embeds as two
