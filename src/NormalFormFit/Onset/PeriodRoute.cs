@@ -71,12 +71,18 @@ public static class PeriodRoute
             return law.Aicc < polyAicc ? ToEstimate(law, polyAicc) : poly;
         }
 
-        // A best law that misses its runs far beyond their errors (systematic residuals, not noise): AICc, which reads
-        // the misfit as scatter, cannot choose between it and the next order of the same expansion. The next order
-        // then gets at least the best's weight, so that the interval carries the change the next term makes — the
-        // error of a truncated expansion is of the order of its first omitted term (common practice, no source).
+        // The best candidate is a square-root law, a truncation of the asymptotic series T = Σ cₖd^((k−1)/2): the next
+        // order of the same series gets at least the best's weight, so that the interval carries the change the next
+        // term makes — the error of a truncated expansion is of the order of its first omitted term (common practice,
+        // no source). AICc cannot do this alone: it weighs the fit to the runs, but the onset is an extrapolation, and a
+        // term too small to show in the residuals can still move it by more than its error. Two cases: the best law
+        // misses its runs far beyond their errors (nearly noise-free periods; AICc then reads the systematic misfit as
+        // scatter), or it fits them within their errors (noisy periods; AICc then keeps the shorter law for its smaller
+        // penalty). Measured on Morris–Lecar spike times (NormalFormFit.Bench signal-coverage, docs/methods.md): the
+        // route's 95% interval covered the fold in 16/24 seeds at noise 0.3 with the shorter law alone, 24/24 with the
+        // next order raised. The rotor and theta neuron, whose T⁻² is a polynomial, rarely prefer a law.
         var raised = false;
-        if (estimates[avg.Best].Law is { } bestLaw && Misfits(bestLaw.Law)
+        if (estimates[avg.Best].Law is { } bestLaw
             && estimates.FindIndex(e => e.Law is { } l && l.Law.Coefficients.Length == bestLaw.Law.Coefficients.Length + 1) is var next and >= 0
             && candidates[next].Aicc > candidates[avg.Best].Aicc)
         {
@@ -104,10 +110,15 @@ public static class PeriodRoute
         // beyond the first disagree by more than their own errors — further terms, which these runs cannot resolve,
         // could move the onset again.
         var top = estimates.Where(e => e.Law is not null).MaxBy(e => e.Law!.Law.Coefficients.Length);
-        if (raised || (best.Law is { } bl && Misfits(bl.Law) && ReferenceEquals(best.Law, top.Law)))
+        if (best.Law is { } bl && Misfits(bl.Law) && (raised || ReferenceEquals(best.Law, top.Law)))
         {
             diags.Add(new Diagnostic(Severity.Warning, "period-law-truncated", string.Create(inv,
                 $"the period route's best law ({best.Law!.Law.Description}) misses its runs far beyond their errors (χ²/dof = {best.Law.Law.ReducedChiSquare:G3}): the expansion of the period is truncated; {(raised ? "the interval carries the change the next term makes" : "no higher order can be fitted to these runs, so the onset may lie beyond the interval")}; measure more runs close to onset")));
+        }
+        else if (raised)
+        {
+            diags.Add(new Diagnostic(Severity.Info, "period-law-next-order", string.Create(inv,
+                $"the period route's best law ({best.Law!.Law.Description}) is a truncated series; the next term of the series enters the average with at least the best law's weight, so the interval carries the change it makes to the onset")));
         }
 
         if (double.IsInfinity(avg.Ci95.Low) || double.IsInfinity(avg.Ci95.High))

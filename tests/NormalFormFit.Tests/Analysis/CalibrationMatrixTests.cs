@@ -65,9 +65,11 @@ public class CalibrationMatrixTests(ITestOutputHelper output)
     public static TheoryData<int> Cells()
     {
         var data = new TheoryData<int>();
+        var only = Environment.GetEnvironmentVariable("NFFIT_CALIBRATION_CELLS")?.Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries)
+            .Select(c => int.Parse(c, CultureInfo.InvariantCulture)).ToHashSet();
         for (var i = 0; i < All.Length; i++)
         {
-            if (Full || All[i].Ci)
+            if (only is not null ? only.Contains(i) : Full || All[i].Ci)
             {
                 data.Add(i);
             }

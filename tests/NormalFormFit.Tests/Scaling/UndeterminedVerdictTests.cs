@@ -60,18 +60,46 @@ public class UndeterminedVerdictTests(ITestOutputHelper output)
         Assert.Contains("β excludes ½", evidence, StringComparison.Ordinal);
     }
 
+    [Theory]
+    [InlineData(0.6, true)]
+    [InlineData(0.4, true)]
+    [InlineData(0.7, false)]
+    public void AnExponentNearOneHalf_WithTheSquareRootLawDecisiveAndTheMinimumSpeedClosing_IsASaddleNodeOnlyWithinTheMargin(double exponent, bool saddleNode)
+    {
+        // T = (μ − 1)^−β with 0.1% errors (an invented law): β's interval excludes ½ in each case. The square-root law
+        // is decisively the best of the three laws and the minimum speed closes (Judge), so the verdict follows the
+        // margin about ½ (OnsetKindDecision.NearHalfMargin = 0.15): a saddle-node on the circle within it, said with the
+        // reservation, and undetermined beyond it.
+        var (verdict, evidence, scaling) = Judge([.. Mus.Select(m => new PeriodPoint(m, Math.Pow(m - 1, -exponent), 1e-3 * Math.Pow(m - 1, -exponent)))]);
+        output.WriteLine(evidence);
+
+        Assert.False(scaling.AdmitsOneHalf, "precondition: β's interval excludes ½");
+        Assert.Contains("period-law weights: saddle-node 1.00", evidence, StringComparison.Ordinal);
+        if (saddleNode)
+        {
+            Assert.Equal(OnsetKind.SaddleNodeOnCircle, verdict);
+            Assert.Contains("though its interval excludes ½", evidence, StringComparison.Ordinal);
+            Assert.Contains("the minimum speed, which extrapolates to zero", evidence, StringComparison.Ordinal);
+        }
+        else
+        {
+            Assert.Equal(OnsetKind.Undetermined, verdict);
+            Assert.Contains("β excludes ½", evidence, StringComparison.Ordinal);
+        }
+    }
+
     [Fact]
     public void PeriodsOnly_WithAnExponentFarFromOneHalf_StayUndetermined()
     {
         // The same T = 1/(μ − 1) given as event times (no phase velocity): β = 1 is far outside ½ ± 0.15, so the
-        // allowance for periods only (OnsetKindDecision.PeriodsOnlyMargin) must not make it a saddle-node.
+        // allowance for periods only (OnsetKindDecision.NearHalfMargin) must not make it a saddle-node.
         PeriodPoint[] periods = [.. Mus.Select(m => new PeriodPoint(m, 1 / (m - 1), 0.01 / (m - 1)))];
         var scaling = ScalingFit.Fit(periods)!;
         var speed = new MinimumSpeedTrend(false, double.NaN, new Interval(double.NaN, double.NaN), 0, periods.Length, PeriodsOnly: true);
         var verdict = OnsetKindDecision.Decide(scaling, PeriodLaws.Weigh(periods), speed);
         output.WriteLine(verdict.Evidence);
 
-        Assert.True(Math.Abs(scaling.Exponent.Value - 0.5) > OnsetKindDecision.PeriodsOnlyMargin, "precondition: β far from ½");
+        Assert.True(Math.Abs(scaling.Exponent.Value - 0.5) > OnsetKindDecision.NearHalfMargin, "precondition: β far from ½");
         Assert.NotEqual(OnsetKind.SaddleNodeOnCircle, verdict.Kind);
     }
 
