@@ -88,7 +88,7 @@ public static partial class HtmlReport
         }
 
         NextMeasurements(sb, report, figures.Select(f => f.Figure.Name).ToList());
-        Figures(sb, figures);
+        Figures(sb, figures, report);
         Runs(sb, report);
         Diagnostics(sb, report);
         Methods(sb, report);
@@ -298,9 +298,14 @@ public static partial class HtmlReport
         sb.Append("</section>\n");
     }
 
-    private static void Figures(StringBuilder sb, IReadOnlyList<(Figure Figure, string Svg)> figures)
+    private static void Figures(StringBuilder sb, IReadOnlyList<(Figure Figure, string Svg)> figures, AnalysisReport report)
     {
         sb.Append("<section id=\"figures\"><h2>Figures</h2>\n");
+        if (NoSignalOrbit(report) is { } why)
+        {
+            sb.Append("<p class=\"note\" id=\"no-signal-orbit\">").Append(E(why)).Append("</p>\n");
+        }
+
         for (var i = 0; i < figures.Count; i++)
         {
             var (fig, svg) = figures[i];
@@ -310,6 +315,28 @@ public static partial class HtmlReport
         }
 
         sb.Append("</section>\n");
+    }
+
+    /// <summary>
+    /// One line on why single-signal runs that turned have no orbit figure: their protophase was not asked for, or
+    /// could not be made (<c>no-signal-orbit</c>); null when every such run has its panel or there is none.
+    /// </summary>
+    internal static string? NoSignalOrbit(AnalysisReport report)
+    {
+        var missing = report.Runs.Where(r => r.InputKind == Ingest.RecordingKind.Signal && r.IsTurning && r.SignalOrbitView is null).ToList();
+        if (missing.Count == 0)
+        {
+            return null;
+        }
+
+        var failed = report.AllDiagnostics.Any(d => d.Code == "no-signal-orbit");
+        var drawn = report.Runs.Any(r => r.SignalOrbitView is not null);
+        if (failed || drawn)
+        {
+            return string.Create(Inv, $"{missing.Count} single-signal run(s) that turn have no panel in the orbit figure: no protophase could be made from their delay-embedded orbit (see Diagnostics), so they carry periods only.");
+        }
+
+        return "No orbit figure: the single-signal runs carry periods from their events only, because no protophase was reconstructed from the signal (nffit analyze --signal-protophase reconstructs one and draws its orbit).";
     }
 
     /// <summary>The run table; the columns of the field and the bottleneck fit only when some run has them (not for event times).</summary>

@@ -92,7 +92,13 @@ public static class RecordingAnalyzer
             var fromPhase = FromPhase(phase, param, file, label, options, RecordingKind.Signal, null, pre);
             if (fromPhase.Value is { } phased)
             {
-                return new Loaded<RunResult>(phased with { Events = s, SignalOrbit = orbit, Dropped = signal.Dropped }, fromPhase.Diagnostics);
+                return new Loaded<RunResult>(phased with
+                {
+                    Events = s,
+                    SignalOrbit = orbit,
+                    SignalOrbitView = SignalOrbitView.From(signal, phase, orbit, phased.Bottleneck?.Phase.Value ?? double.NaN, phased.Direction),
+                    Dropped = signal.Dropped,
+                }, fromPhase.Diagnostics);
             }
 
             return fromPhase;
