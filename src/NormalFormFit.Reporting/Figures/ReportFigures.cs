@@ -24,7 +24,7 @@ public sealed record Figure(string Name, string Title, string Caption, Plot Plot
     /// One figure renders at a time in the process: rendering from several threads at once (reports written in
     /// parallel) crashed the process in the native drawing library (a segfault in libSkiaSharp, seen in a test run).
     /// </summary>
-    private static readonly Lock RenderGate = new();
+    internal static readonly Lock RenderGate = new();
 
     /// <summary>PNG bytes.</summary>
     public byte[] Png()
@@ -262,8 +262,11 @@ public static partial class ReportFigures
         var next = NextRunMarks(plot, report, estimate, xMin - pad, xMax + pad);
 
         // An interval narrower than its mark cannot be read off the bar: an inset note says so and where to read it.
+        // Narrowness in pixels of this figure's data area, measured by laying the figure out once (axes, ticks, labels).
+        plot.Axes.SetLimitsX(xMin - pad, xMax + pad);
+        var dataArea = DataAreaWidth(plot);
         var narrow = new[] { (E: own, Bottleneck: bottleneckRoute, Size: OwnMarkSize), (E: other, Bottleneck: !bottleneckRoute, Size: OtherMarkSize) }
-            .Where(o => o.E.IsAvailable && NarrowerThanMark(o.E.Ci95, xMax - xMin + (2 * pad), o.Size))
+            .Where(o => o.E.IsAvailable && NarrowerThanMark(o.E.Ci95, xMax - xMin + (2 * pad), o.Size, dataArea))
             .ToList();
         if (narrow.Count > 0)
         {
@@ -275,7 +278,6 @@ public static partial class ReportFigures
             note.LabelBorderColor = FigurePalette.Reference;
         }
 
-        plot.Axes.SetLimitsX(xMin - pad, xMax + pad);
         plot.ShowLegend(Alignment.UpperLeft);
         var ownShape = bottleneckRoute ? "blue open diamond" : "amber open square";
         var otherShape = bottleneckRoute ? "amber open square" : "blue open diamond";
@@ -564,18 +566,26 @@ public static partial class ReportFigures
     internal const int OtherMarkSize = 12;
 
     /// <summary>
-    /// Width in pixels of a figure's data area, at least: the default width less the widest margins the axes take
-    /// (tick labels and the axis label on the left, padding on the right; measured on the report's figures).
+    /// Width in pixels of <paramref name="plot"/>'s data area at the default size: the plot is laid out and drawn
+    /// once (under the one-render-at-a-time gate) and the library's last layout read back.
     /// </summary>
-    private const int MinDataAreaPixels = DefaultWidth - 130;
+    internal static double DataAreaWidth(Plot plot)
+    {
+        lock (Figure.RenderGate)
+        {
+            using var image = plot.GetImage(DefaultWidth, DefaultHeight);
+            return plot.RenderManager.LastRender.DataRect.Width;
+        }
+    }
 
     /// <summary>
-    /// True when the interval drawn on an axis <paramref name="axisWidth"/> wide spans fewer pixels than a mark of
-    /// <paramref name="markSize"/> pixels, so the mark covers it (an unbounded interval is never narrow).
+    /// True when the interval drawn on an axis <paramref name="axisWidth"/> wide, over a data area
+    /// <paramref name="dataAreaPixels"/> pixels wide, spans fewer pixels than a mark of <paramref name="markSize"/>
+    /// pixels, so the mark covers it (an unbounded interval is never narrow).
     /// </summary>
-    internal static bool NarrowerThanMark(Interval ci, double axisWidth, int markSize) =>
+    internal static bool NarrowerThanMark(Interval ci, double axisWidth, int markSize, double dataAreaPixels) =>
         double.IsFinite(ci.Low) && double.IsFinite(ci.High) && axisWidth > 0
-        && (ci.High - ci.Low) / axisWidth * MinDataAreaPixels < markSize;
+        && (ci.High - ci.Low) / axisWidth * dataAreaPixels < markSize;
 
     private static string NarrowNote(IReadOnlyList<(OnsetEstimate E, bool Bottleneck)> narrow, string? unit) =>
         (narrow.Count > 1 ? "95% intervals narrower than their marks:\n" : "95% interval narrower than its mark:\n") + string.Join("\n", narrow.Select(o =>
@@ -899,7 +909,7 @@ public static partial class ReportFigures
 
         if (Math.Abs(v) >= 1e15)
         {
-            return v.ToString("G6", Inv);
+            return ReportNumbers.G(v, 6);
         }
 
         var rounded = decimal.Parse(v.ToString("G12", Inv), NumberStyles.Float, Inv);
@@ -923,7 +933,7 @@ public static partial class ReportFigures
 
                 if (m is 1 or 2 or 5)
                 {
-                    ticks.AddMajor(lv, v.ToString("G3", Inv));
+                    ticks.AddMajor(lv, ReportNumbers.G(v, 3));
                 }
                 else
                 {
@@ -943,5 +953,5 @@ public static partial class ReportFigures
 
     private static string UnitsOr(AnalysisReport report, string fallback) => report.ParamUnits is { Length: > 0 } u ? u : fallback;
 
-    private static string G(double x, int digits) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
+    private static string G(double x, int digits) => ReportNumbers.G(x, digits);
 }
