@@ -221,17 +221,17 @@ internal static class CompareCommand
         foreach (var p in c.Parameters.Append(c.Offset).Append(c.Scale))
         {
             w.WriteLine(p.Fixed
-                ? string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  (held)")
-                : string.Create(ic, $"  {p.Name,-10} {p.Value,12:G6}  ± {p.StandardError:G2}   95% [{p.Ci95.Low:G6}, {p.Ci95.High:G6}]"));
+                ? string.Create(ic, $"  {p.Name,-10} {Numerics.ErrorDigits.Plain(p.Value, 6),12}  (held)")
+                : string.Create(ic, $"  {p.Name,-10} {Numerics.ErrorDigits.Plain(p.Value, 6),12}  ± {Numerics.ErrorDigits.Plain(p.StandardError, 2)}   95% [{Numerics.ErrorDigits.Plain(p.Ci95.Low, 6)}, {Numerics.ErrorDigits.Plain(p.Ci95.High, 6)}]"));
         }
 
-        w.WriteLine(string.Create(ic, $"onset  μ_lab = {c.Onset.Value:G6} ± {c.Onset.StandardError:G2}   95% [{c.OnsetCi95.Low:G6}, {c.OnsetCi95.High:G6}]  (where the limit cycle appears)"));
+        w.WriteLine(string.Create(ic, $"onset  μ_lab = {Numerics.ErrorDigits.Plain(c.Onset.Value, 6)} ± {Numerics.ErrorDigits.Plain(c.Onset.StandardError, 2)}   95% [{Numerics.ErrorDigits.Plain(c.OnsetCi95.Low, 6)}, {Numerics.ErrorDigits.Plain(c.OnsetCi95.High, 6)}]  (where the limit cycle appears)"));
         var replicates = c.ReplicateStatistics.Count + c.FailedReplicates;
-        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {c.Statistic:G4}; {replicates} simulated from the fit: mean {c.Expected:G4}, largest {(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN):G4}; p = {c.PValue:G2})"));
+        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {Numerics.ErrorDigits.Plain(c.Statistic, 4)}; {replicates} simulated from the fit: mean {Numerics.ErrorDigits.Plain(c.Expected, 4)}, largest {Numerics.ErrorDigits.Plain(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN, 4)}; p = {Numerics.ErrorDigits.Plain(c.PValue, 2)})"));
         w.WriteLine("worst runs (squared period residual over its mean in the simulated replicates; about 1 is a good fit):");
         foreach (var r in c.WorstRuns)
         {
-            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {r.Param:G6}  {r.Ratio:F2}  model frequency {(r.PeriodResidual > 0 ? "too high" : "too low")} by {Math.Abs(r.PeriodResidual):F2} (replicate RMS)"));
+            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {Numerics.ErrorDigits.Plain(r.Param, 6)}  {r.Ratio:F2}  model frequency {(r.PeriodResidual > 0 ? "too high" : "too low")} by {Math.Abs(r.PeriodResidual):F2} (replicate RMS)"));
         }
 
         foreach (var d in c.Diagnostics)

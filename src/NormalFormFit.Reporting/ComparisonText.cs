@@ -31,7 +31,7 @@ public static class ComparisonText
             ? $"onset  μ_lab = {ReportNumbers.WithError(c.Onset.Value, c.Onset.StandardError)}{u}   95% {ReportNumbers.Interval(c.OnsetCi95, c.Onset.StandardError)}{u}"
             : "onset  none in reach of the runs");
         var replicates = c.ReplicateStatistics.Count + c.FailedReplicates;
-        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {ReportNumbers.Plain(c.Statistic, 4)}; {replicates} simulated from the fit: mean {ReportNumbers.Plain(c.Expected, 4)}, largest {ReportNumbers.Plain(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN, 3)}; p = {c.PValue:G2})"));
+        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {ReportNumbers.Plain(c.Statistic, 4)}; {replicates} simulated from the fit: mean {ReportNumbers.Plain(c.Expected, 4)}, largest {ReportNumbers.Plain(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN, 3)}; p = {ReportNumbers.G(c.PValue, 2)})"));
         w.WriteLine(c.Sense switch
         {
             TurningSense.Forward => "turning sense  the phase increases in every run as read; the model is fitted with positive speeds",
@@ -41,7 +41,7 @@ public static class ComparisonText
         w.WriteLine("worst runs (misfit over its mean in the simulated replicates; about 1 is a good fit):");
         foreach (var r in c.WorstRuns)
         {
-            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {r.Param:G6}{u}  {ReportNumbers.Plain(r.Ratio, 2)}  model {(r.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(r.MeanResidual):F2} (replicate RMS)"));
+            w.WriteLine(string.Create(ic, $"  {r.File}  μ = {ReportNumbers.G(r.Param, 6)}{u}  {ReportNumbers.Plain(r.Ratio, 2)}  model {(r.MeanResidual > 0 ? "too fast" : "too slow")} on average by {Math.Abs(r.MeanResidual):F2} (replicate RMS)"));
         }
 
         w.WriteLine("worst phase regions (radians, in the data's phase):");

@@ -7,11 +7,11 @@ internal static class ReportNumbers
 {
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
 
-    /// <summary>General format with <paramref name="digits"/> significant digits.</summary>
-    public static string G(double x, int digits = 6) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
+    /// <summary><paramref name="digits"/> significant digits, plain notation by the report's rule (<see cref="NormalFormFit.Numerics.ErrorDigits.Plain"/>).</summary>
+    public static string G(double x, int digits = 6) => double.IsFinite(x) ? NormalFormFit.Numerics.ErrorDigits.Plain(x, digits) : "–";
 
     /// <summary>An interval bound, ±∞ when unbounded.</summary>
-    public static string Bound(double x) => double.IsFinite(x) ? x.ToString("G6", Inv) : double.IsNaN(x) ? "–" : (x > 0 ? "+∞" : "−∞");
+    public static string Bound(double x) => double.IsFinite(x) ? G(x) : double.IsNaN(x) ? "–" : (x > 0 ? "+∞" : "−∞");
 
     /// <summary>
     /// A value with its standard error, the value rounded to the error's second significant digit
@@ -46,34 +46,10 @@ internal static class ReportNumbers
         !double.IsFinite(value) ? "–" : se > 0 && double.IsFinite(se) ? value.ToString("F" + Decimals(se).ToString(Inv), Inv) : G(value);
 
     /// <summary>
-    /// <paramref name="digits"/> significant digits in plain notation, and beyond 10⁶ or below 10⁻⁴ as a power of ten
-    /// written out (7.63×10⁸), never the "E+08" of a computer format.
+    /// <paramref name="digits"/> significant digits in plain notation, and far from 1 as a power of ten written out
+    /// (7.63×10¹⁰), never the "E+10" of a computer format (<see cref="NormalFormFit.Numerics.ErrorDigits.Plain"/>).
     /// </summary>
-    public static string Plain(double x, int digits = 3)
-    {
-        if (!double.IsFinite(x))
-        {
-            return "–";
-        }
-
-        var a = Math.Abs(x);
-        if (x == 0 || (a >= 1e-4 && a < 1e6))
-        {
-            return x.ToString("G" + digits.ToString(Inv), Inv);
-        }
-
-        var exponent = (int)Math.Floor(Math.Log10(a));
-        var mantissa = Math.Round(x / Math.Pow(10, exponent), Math.Max(digits - 1, 0));
-        if (Math.Abs(mantissa) >= 10)
-        {
-            mantissa /= 10;
-            exponent++;
-        }
-
-        const string Superscripts = "⁰¹²³⁴⁵⁶⁷⁸⁹";
-        var power = string.Concat(Math.Abs(exponent).ToString(Inv).Select(c => Superscripts[c - '0']));
-        return mantissa.ToString("G" + digits.ToString(Inv), Inv) + "×10" + (exponent < 0 ? "⁻" : string.Empty) + power;
-    }
+    public static string Plain(double x, int digits = 3) => G(x, digits);
 
     private static int Decimals(double se) => NormalFormFit.Numerics.ErrorDigits.Decimals(se);
 }

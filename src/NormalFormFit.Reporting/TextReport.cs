@@ -116,7 +116,7 @@ public static class TextReport
                 var o = r.Orbit!;
                 var e = o.Ellipse;
                 sb.AppendLine(string.Create(Inv,
-                    $"  {G(r.Param, 6)}: centre ({e.CentreX:G5}, {e.CentreY:G5}), semi-axes {e.SemiMajor:G4} × {e.SemiMinor:G4}, tilt {e.Tilt * 180 / Math.PI:F1}°, RMS deviation {o.RmsDeviation:P2}, {o.Sense}{(o.IsProtophase ? "; NOT an ellipse: phase is a protophase, a and b in protophase units" : string.Empty)}"));
+                    $"  {G(r.Param, 6)}: centre ({G(e.CentreX, 5)}, {G(e.CentreY, 5)}), semi-axes {G(e.SemiMajor, 4)} × {G(e.SemiMinor, 4)}, tilt {e.Tilt * 180 / Math.PI:F1}°, RMS deviation {o.RmsDeviation:P2}, {o.Sense}{(o.IsProtophase ? "; NOT an ellipse: phase is a protophase, a and b in protophase units" : string.Empty)}"));
             }
         }
 
@@ -132,9 +132,9 @@ public static class TextReport
                 var eu = report.TimeUnit is { } timeUnit ? " " + timeUnit : string.Empty;
                 sb.AppendLine(double.IsFinite(ev.Threshold)
                     ? string.Create(Inv,
-                        $"  {G(r.Param, 6)}: {ev.Count} events in '{ev.Column}', threshold {ev.Threshold:G5}{su} ({(ev.ThresholdGiven ? "given" : "from the signal")}), hysteresis {ev.Hysteresis:G4}{su}, refractory {ev.RefractoryTime:G4}{eu}{(ev.Glitches + ev.WithinRefractory > 0 ? $"; {ev.Glitches} glitch(es), {ev.WithinRefractory} early crossing(s) left out" : string.Empty)}")
+                        $"  {G(r.Param, 6)}: {ev.Count} events in '{ev.Column}', threshold {G(ev.Threshold, 5)}{su} ({(ev.ThresholdGiven ? "given" : "from the signal")}), hysteresis {G(ev.Hysteresis, 4)}{su}, refractory {G(ev.RefractoryTime, 4)}{eu}{(ev.Glitches + ev.WithinRefractory > 0 ? $"; {ev.Glitches} glitch(es), {ev.WithinRefractory} early crossing(s) left out" : string.Empty)}")
                     : string.Create(Inv,
-                        $"  {G(r.Param, 6)}: no events in '{ev.Column}': nothing stands {2 * SignalEvents.ClearOfNoise:G} noise SDs above its median {ev.Baseline:G5}{su} (silent, does not turn)"));
+                        $"  {G(r.Param, 6)}: no events in '{ev.Column}': nothing stands {2 * SignalEvents.ClearOfNoise:G} noise SDs above its median {G(ev.Baseline, 5)}{su} (silent, does not turn)"));
             }
         }
 
@@ -185,7 +185,7 @@ public static class TextReport
         sb.AppendLine("Next measurements (where new runs shrink the onset interval most; the narrowing in the linear approximation)");
         foreach (var m in report.NextMeasurements)
         {
-            var period = double.IsFinite(m.ExpectedPeriod) ? string.Create(Inv, $", period about {m.ExpectedPeriod:G3}{(report.TimeUnit is { } tu ? " " + tu : string.Empty)}") : string.Empty;
+            var period = double.IsFinite(m.ExpectedPeriod) ? string.Create(Inv, $", period about {G(m.ExpectedPeriod, 3)}{(report.TimeUnit is { } tu ? " " + tu : string.Empty)}") : string.Empty;
             var route = m.Route == OnsetRoute.Bottleneck ? report.FromBottleneck : report.FromPeriod;
             var now = ReportNumbers.Interval(route.Ci95, route.StandardError);
             sb.AppendLine(string.Create(Inv,
@@ -226,7 +226,7 @@ public static class TextReport
             ? "<" + G(Math.Max(d.Value, 0) + (2 * d.StandardError), 1)
             : G(d.Value, 2);
 
-    private static string G(double x, int digits) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
+    private static string G(double x, int digits) => ReportNumbers.G(x, digits);
 
     private static string F(double x, int digits) => double.IsFinite(x) ? x.ToString("F" + digits.ToString(Inv), Inv) : "–";
 }

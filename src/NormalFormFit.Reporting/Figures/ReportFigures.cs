@@ -24,7 +24,7 @@ public sealed record Figure(string Name, string Title, string Caption, Plot Plot
     /// One figure renders at a time in the process: rendering from several threads at once (reports written in
     /// parallel) crashed the process in the native drawing library (a segfault in libSkiaSharp, seen in a test run).
     /// </summary>
-    private static readonly Lock RenderGate = new();
+    internal static readonly Lock RenderGate = new();
 
     /// <summary>PNG bytes.</summary>
     public byte[] Png()
@@ -81,6 +81,7 @@ public static partial class ReportFigures
             Periods(report),
             Residuals(report),
             Orbits(report),
+            SignalOrbits(report),
         };
         return [.. figures.OfType<Figure>()];
     }
@@ -261,8 +262,11 @@ public static partial class ReportFigures
         var next = NextRunMarks(plot, report, estimate, xMin - pad, xMax + pad);
 
         // An interval narrower than its mark cannot be read off the bar: an inset note says so and where to read it.
+        // Narrowness in pixels of this figure's data area, measured by laying the figure out once (axes, ticks, labels).
+        plot.Axes.SetLimitsX(xMin - pad, xMax + pad);
+        var dataArea = DataAreaWidth(plot);
         var narrow = new[] { (E: own, Bottleneck: bottleneckRoute, Size: OwnMarkSize), (E: other, Bottleneck: !bottleneckRoute, Size: OtherMarkSize) }
-            .Where(o => o.E.IsAvailable && NarrowerThanMark(o.E.Ci95, xMax - xMin + (2 * pad), o.Size))
+            .Where(o => o.E.IsAvailable && NarrowerThanMark(o.E.Ci95, xMax - xMin + (2 * pad), o.Size, dataArea))
             .ToList();
         if (narrow.Count > 0)
         {
@@ -274,7 +278,6 @@ public static partial class ReportFigures
             note.LabelBorderColor = FigurePalette.Reference;
         }
 
-        plot.Axes.SetLimitsX(xMin - pad, xMax + pad);
         plot.ShowLegend(Alignment.UpperLeft);
         var ownShape = bottleneckRoute ? "blue open diamond" : "amber open square";
         var otherShape = bottleneckRoute ? "amber open square" : "blue open diamond";
@@ -563,18 +566,26 @@ public static partial class ReportFigures
     internal const int OtherMarkSize = 12;
 
     /// <summary>
-    /// Width in pixels of a figure's data area, at least: the default width less the widest margins the axes take
-    /// (tick labels and the axis label on the left, padding on the right; measured on the report's figures).
+    /// Width in pixels of <paramref name="plot"/>'s data area at the default size: the plot is laid out and drawn
+    /// once (under the one-render-at-a-time gate) and the library's last layout read back.
     /// </summary>
-    private const int MinDataAreaPixels = DefaultWidth - 130;
+    internal static double DataAreaWidth(Plot plot)
+    {
+        lock (Figure.RenderGate)
+        {
+            using var image = plot.GetImage(DefaultWidth, DefaultHeight);
+            return plot.RenderManager.LastRender.DataRect.Width;
+        }
+    }
 
     /// <summary>
-    /// True when the interval drawn on an axis <paramref name="axisWidth"/> wide spans fewer pixels than a mark of
-    /// <paramref name="markSize"/> pixels, so the mark covers it (an unbounded interval is never narrow).
+    /// True when the interval drawn on an axis <paramref name="axisWidth"/> wide, over a data area
+    /// <paramref name="dataAreaPixels"/> pixels wide, spans fewer pixels than a mark of <paramref name="markSize"/>
+    /// pixels, so the mark covers it (an unbounded interval is never narrow).
     /// </summary>
-    internal static bool NarrowerThanMark(Interval ci, double axisWidth, int markSize) =>
+    internal static bool NarrowerThanMark(Interval ci, double axisWidth, int markSize, double dataAreaPixels) =>
         double.IsFinite(ci.Low) && double.IsFinite(ci.High) && axisWidth > 0
-        && (ci.High - ci.Low) / axisWidth * MinDataAreaPixels < markSize;
+        && (ci.High - ci.Low) / axisWidth * dataAreaPixels < markSize;
 
     private static string NarrowNote(IReadOnlyList<(OnsetEstimate E, bool Bottleneck)> narrow, string? unit) =>
         (narrow.Count > 1 ? "95% intervals narrower than their marks:\n" : "95% interval narrower than its mark:\n") + string.Join("\n", narrow.Select(o =>
@@ -705,14 +716,7 @@ public static partial class ReportFigures
             label.LabelFontColor = FigurePalette.Ink;
         }
 
-        plot.HideGrid();
-        plot.Axes.Frameless();
-        plot.Title("Orbits of the positions"); // Frameless hides the title panel too (ScottPlot 5 AxisManager.Frameless)
-        plot.Axes.SquareUnits();
-        plot.Axes.SetLimits(-1.45, ((cols - 1) * cell) + 1.45, -((rows - 1) * cell) - 1.6, 2.4);
-        plot.ShowLegend(Alignment.UpperRight);
-        var width = DefaultWidth;
-        var height = Math.Min(1400, 140 + (int)(rows * (width - 40) / (double)cols));
+        var height = PanelLayout(plot, "Orbits of the positions", cols, rows, cell);
         var thinned = runs.Any(r => r.OrbitView!.Samples > OrbitView.MaxDrawn);
         return new Figure("orbits", "Orbits of the positions",
             "One panel per run recorded as positions, in order of μ, each centred on its fitted ellipse and scaled by its semi-major " +
@@ -726,6 +730,145 @@ public static partial class ReportFigures
             Height = height,
         };
     }
+
+    /// <summary>
+    /// Frameless square panels <paramref name="cell"/> apart, <paramref name="cols"/> × <paramref name="rows"/>, each
+    /// spanning ±1.45 across and from −1.6 (room for its label) to +1.45; the legend in its own strip below the panels,
+    /// outside the data area, so no panel hides it and it is never clipped. Returns the figure's height in pixels.
+    /// </summary>
+    private static int PanelLayout(Plot plot, string title, int cols, int rows, double cell)
+    {
+        plot.HideGrid();
+        plot.Axes.Frameless();
+        plot.Title(title); // Frameless hides the title panel too (ScottPlot 5 AxisManager.Frameless)
+        plot.Axes.SquareUnits();
+        plot.Axes.SetLimits(-1.45, ((cols - 1) * cell) + 1.45, -((rows - 1) * cell) - 1.6, 1.45);
+        var legend = plot.ShowLegend(Edge.Bottom);
+        legend.Alignment = Alignment.MiddleCenter;
+        plot.Legend.Orientation = Orientation.Horizontal;
+        // Square units: pixels per unit from the width, the height from the rows, plus the title and the legend strip.
+        var perUnit = (DefaultWidth - 20) / (((cols - 1) * cell) + 2.9);
+        return Math.Min(1400, 110 + (int)Math.Ceiling(perUnit * (((rows - 1) * cell) + 3.05)));
+    }
+
+    /// <summary>
+    /// The delay-embedded orbits of single-signal runs whose protophase ran, one small panel per run: the samples used
+    /// (at most <see cref="SignalOrbitView.MaxDrawn"/>), those of the cycles left out, the mean orbit the protophase
+    /// runs along, the centre of the angle that orders it, and the bottleneck. Each panel is centred on the box of its
+    /// samples and scaled by its half-width (both coordinates are the same signal, so one scale). Null without such runs.
+    /// </summary>
+    internal static Figure? SignalOrbits(AnalysisReport report)
+    {
+        var runs = Ordered(report).Where(r => r.SignalOrbitView is not null).ToList();
+        if (runs.Count == 0)
+        {
+            return null;
+        }
+
+        var cols = Math.Min(4, runs.Count);
+        var rows = (runs.Count + cols - 1) / cols;
+        const double cell = 2.7;
+        const string Title = "Delay-embedded orbits of the signal";
+        var plot = NewPlot(Title, string.Empty, string.Empty);
+        bool anyLeftOut = false, anyBottleneck = false;
+        for (var i = 0; i < runs.Count; i++)
+        {
+            var v = runs[i].SignalOrbitView!;
+            var ox = (i % cols) * cell;
+            var oy = -(i / cols) * cell;
+            var all = v.X.Concat(v.Y).Concat(v.LeftOutX).Concat(v.LeftOutY).Concat(v.MeanX).Where(double.IsFinite).ToArray();
+            if (all.Length == 0)
+            {
+                continue;
+            }
+
+            var lo = all.Min();
+            var hi = all.Max();
+            var mid = (lo + hi) / 2;
+            var s = hi > lo ? 2 / (hi - lo) : 1;
+            double Px(double x) => ox + ((x - mid) * s);
+            double Py(double y) => oy + ((y - mid) * s);
+
+            var samples = plot.Add.ScatterPoints(v.X.Select(Px).ToArray(), v.Y.Select(Py).ToArray(), FigurePalette.Ink.WithAlpha(0.45));
+            samples.MarkerSize = 2.5f;
+            if (i == 0)
+            {
+                samples.LegendText = "samples used";
+            }
+
+            if (v.LeftOutX.Length > 0)
+            {
+                var bad = plot.Add.ScatterPoints(v.LeftOutX.Select(Px).ToArray(), v.LeftOutY.Select(Py).ToArray(), FigurePalette.Rejected.WithAlpha(0.8));
+                bad.MarkerShape = MarkerShape.Eks;
+                bad.MarkerSize = 5;
+                bad.MarkerLineWidth = 1.2f;
+                if (!anyLeftOut)
+                {
+                    bad.LegendText = "cycles left out";
+                }
+
+                anyLeftOut = true;
+            }
+
+            if (v.MeanX.Length > 1)
+            {
+                var mean = plot.Add.ScatterLine(v.MeanX.Select(Px).ToArray(), v.MeanY.Select(Py).ToArray(), FigurePalette.Bottleneck);
+                mean.LineWidth = 2f;
+                if (i == 0)
+                {
+                    mean.LegendText = "mean orbit (the protophase runs along it)";
+                }
+            }
+
+            var centre = plot.Add.Marker(Px(v.CentreX), Py(v.CentreY), MarkerShape.Cross, 12, FigurePalette.Ink);
+            centre.LineWidth = 2;
+            if (i == 0)
+            {
+                centre.LegendText = "centre";
+            }
+
+            if (double.IsFinite(v.BottleneckX))
+            {
+                var neck = plot.Add.Marker(Px(v.BottleneckX), Py(v.BottleneckY), MarkerShape.FilledDiamond, 13, FigurePalette.Period);
+                if (!anyBottleneck)
+                {
+                    neck.LegendText = "bottleneck θ*";
+                }
+
+                anyBottleneck = true;
+            }
+
+            var cycles = v.CyclesLeftOut > 0 ? $"{v.Cycles - v.CyclesLeftOut} of {v.Cycles} cycles" : $"{v.Cycles} cycles";
+            var label = plot.Add.Text($"{ParamValue(report, runs[i].Param)}: {cycles}", ox, oy - 1.22);
+            label.LabelFontSize = 12;
+            label.LabelAlignment = Alignment.UpperCenter;
+            label.LabelFontColor = FigurePalette.Ink;
+        }
+
+        var height = PanelLayout(plot, Title, cols, rows, cell);
+        var signal = report.Runs.Select(r => r.Events?.Column).FirstOrDefault(c => c is not null) ?? "the signal";
+        var unit = NormalFormFit.Ingest.ColumnNames.SplitParameterName(signal).Unit;
+        var delays = runs.Select(r => ReportNumbers.Plain(r.SignalOrbitView!.Delay, 3)).Distinct().ToList();
+        var rule = runs.Select(r => r.SignalOrbit?.DelayRule).FirstOrDefault(x => x is not null);
+        var delay = (delays.Count == 1 ? $"{delays[0]} {TimeUnits(report)}" : $"{delays[0]} to {delays[^1]} {TimeUnits(report)}") + (rule is null ? string.Empty : $", {rule}");
+        var thinned = runs.Any(r => r.SignalOrbitView!.Samples > SignalOrbitView.MaxDrawn || r.SignalOrbitView.LeftOut > SignalOrbitView.MaxDrawn);
+        return new Figure("signal-orbits", Title,
+            $"One panel per single-signal run whose protophase ran, in order of μ: the signal s = '{signal}' across against itself a delay " +
+            $"earlier, s(t − {delay}), up, both in {(unit is { Length: > 0 } u ? u : "the signal's unit")}, each panel centred on " +
+            "its samples and scaled to their range. Dark dots: the samples the protophase used" +
+            (thinned ? $" (at most {SignalOrbitView.MaxDrawn} drawn per run, evenly thinned in time)" : string.Empty) +
+            "; blue: the mean orbit, along which the protophase measures arc length" +
+            (runs.Any(r => r.SignalOrbitView!.MeanX.Length == 0) ? $" " + string.Create(Inv, $"(not drawn where fewer than {SignalOrbitView.MinCoverage * 100:F0}% of its {SignalOrbitView.MeanBins} phase bins hold samples used)") : string.Empty) +
+            "; black cross: the centre about which the angle orders the orbit" +
+            (anyLeftOut ? "; red crosses: samples of the cycles left out because their protophase ran backwards or did not go once round" : string.Empty) +
+            (anyBottleneck ? "; amber diamond: the bottleneck θ*, where the signal lingers before an event" : string.Empty) + ".", plot)
+        {
+            Height = height,
+        };
+    }
+
+    /// <summary>Height in pixels of a legend row (the symbol's box, which sets the row).</summary>
+    internal const float LegendRowHeight = 20;
 
     private static Plot NewPlot(string title, string x, string y)
     {
@@ -742,6 +885,9 @@ public static partial class ReportFigures
         plot.Axes.Bottom.TickGenerator = new ScottPlot.TickGenerators.NumericAutomatic { LabelFormatter = PlainTick };
         plot.Axes.Left.TickGenerator = new ScottPlot.TickGenerators.NumericAutomatic { LabelFormatter = PlainTick };
         plot.Legend.FontSize = 12;
+        // Rows at least as tall as a line of 12-px text: with the library's default row height the first entry's
+        // ascenders stuck out above the legend's inner area and were cut off (ScottPlot 5.1.59, seen on every figure).
+        plot.Legend.SymbolHeight = LegendRowHeight;
         return plot;
     }
 
@@ -763,7 +909,7 @@ public static partial class ReportFigures
 
         if (Math.Abs(v) >= 1e15)
         {
-            return v.ToString("G6", Inv);
+            return ReportNumbers.G(v, 6);
         }
 
         var rounded = decimal.Parse(v.ToString("G12", Inv), NumberStyles.Float, Inv);
@@ -787,7 +933,7 @@ public static partial class ReportFigures
 
                 if (m is 1 or 2 or 5)
                 {
-                    ticks.AddMajor(lv, v.ToString("G3", Inv));
+                    ticks.AddMajor(lv, ReportNumbers.G(v, 3));
                 }
                 else
                 {
@@ -807,5 +953,5 @@ public static partial class ReportFigures
 
     private static string UnitsOr(AnalysisReport report, string fallback) => report.ParamUnits is { Length: > 0 } u ? u : fallback;
 
-    private static string G(double x, int digits) => double.IsFinite(x) ? x.ToString("G" + digits.ToString(Inv), Inv) : "–";
+    private static string G(double x, int digits) => ReportNumbers.G(x, digits);
 }

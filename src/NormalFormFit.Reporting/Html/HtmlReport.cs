@@ -88,7 +88,7 @@ public static partial class HtmlReport
         }
 
         NextMeasurements(sb, report, figures.Select(f => f.Figure.Name).ToList());
-        Figures(sb, figures);
+        Figures(sb, figures, report);
         Runs(sb, report);
         Diagnostics(sb, report);
         Methods(sb, report);
@@ -298,9 +298,14 @@ public static partial class HtmlReport
         sb.Append("</section>\n");
     }
 
-    private static void Figures(StringBuilder sb, IReadOnlyList<(Figure Figure, string Svg)> figures)
+    private static void Figures(StringBuilder sb, IReadOnlyList<(Figure Figure, string Svg)> figures, AnalysisReport report)
     {
         sb.Append("<section id=\"figures\"><h2>Figures</h2>\n");
+        if (NoSignalOrbit(report) is { } why)
+        {
+            sb.Append("<p class=\"note\" id=\"no-signal-orbit\">").Append(E(why)).Append("</p>\n");
+        }
+
         for (var i = 0; i < figures.Count; i++)
         {
             var (fig, svg) = figures[i];
@@ -310,6 +315,28 @@ public static partial class HtmlReport
         }
 
         sb.Append("</section>\n");
+    }
+
+    /// <summary>
+    /// One line on why single-signal runs that turned have no orbit figure: their protophase was not asked for, or
+    /// could not be made (<c>no-signal-orbit</c>); null when every such run has its panel or there is none.
+    /// </summary>
+    internal static string? NoSignalOrbit(AnalysisReport report)
+    {
+        var missing = report.Runs.Where(r => r.InputKind == Ingest.RecordingKind.Signal && r.IsTurning && r.SignalOrbitView is null).ToList();
+        if (missing.Count == 0)
+        {
+            return null;
+        }
+
+        var failed = report.AllDiagnostics.Any(d => d.Code == "no-signal-orbit");
+        var drawn = report.Runs.Any(r => r.SignalOrbitView is not null);
+        if (failed || drawn)
+        {
+            return string.Create(Inv, $"{missing.Count} single-signal run(s) that turn have no panel in the orbit figure: no protophase could be made from their delay-embedded orbit (see Diagnostics), so they carry periods only.");
+        }
+
+        return "No orbit figure: the single-signal runs carry periods from their events only, because no protophase was reconstructed from the signal (nffit analyze --signal-protophase reconstructs one and draws its orbit).";
     }
 
     /// <summary>The run table; the columns of the field and the bottleneck fit only when some run has them (not for event times).</summary>
@@ -396,16 +423,36 @@ public static partial class HtmlReport
         var fields = report.Runs.Any(r => r.Field is not null);
         var bottleneck = report.Runs.Any(r => r.Bottleneck is not null);
         var positions = report.Runs.Any(r => r.Orbit is not null);
-        var events = report.Runs.Any(r => r.Flags.Contains(RunFlag.PeriodsOnly));
+        var eventTimes = report.Runs.Any(r => r.InputKind == Ingest.RecordingKind.Events);
+        var signals = report.Runs.Any(r => r.InputKind == Ingest.RecordingKind.Signal);
+        // A signal run with a field had a protophase (run lines read back keep the field, not the orbit).
+        var protophase = report.Runs.Any(r => r.SignalOrbit is not null || (r.InputKind == Ingest.RecordingKind.Signal && r.Field is not null));
+        var signalPeriodsOnly = report.Runs.Any(r => r.InputKind == Ingest.RecordingKind.Signal && r.Field is null && r.IsTurning);
         var notes = new List<(string Term, string Text)>();
         if (positions)
         {
             notes.Add(OrbitNote);
         }
 
-        if (events)
+        if (eventTimes)
         {
             notes.Add(EventNote);
+        }
+
+        if (signals)
+        {
+            notes.Add(("Events in a single signal", SignalEventText + (protophase
+                ? signalPeriodsOnly
+                    ? " A run without a protophase (none could be made from its orbit) enters the period route only, through the mean interval between its events."
+                    : string.Empty
+                : " No phase between events was reconstructed: no smoothing, field or bottleneck fit ran on these runs, and they enter the period route only, through the mean interval between events.")));
+        }
+
+        if (protophase)
+        {
+            notes.Add(report.Runs.Any(r => r.SignalOrbitView is not null)
+                ? SignalPhaseNote with { Text = SignalPhaseNote.Text + " The orbit figure shows the embedded samples, the mean orbit, the cycles left out and the bottleneck." }
+                : SignalPhaseNote);
         }
 
         foreach (var (term, text) in MethodNotes)
@@ -444,8 +491,19 @@ public static partial class HtmlReport
         "protophase, which leaves onset and periods unchanged. The orbit figure shows the samples, the fitted orbit and the rejected points.");
 
     private static readonly (string Term, string Text) EventNote = ("Event times", "For runs recorded as event times (one event per " +
-        "revolution), and for single signals whose events nffit detects, there is no phase between events: no smoothing, field or bottleneck fit ran on them, and they enter the period " +
+        "revolution) there is no phase between events: no smoothing, field or bottleneck fit ran on them, and they enter the period " +
         "route only, through the mean interval between events.");
+
+    private const string SignalEventText = "In a single signal, events are its upward crossings of a threshold (given, or halfway from " +
+        "the signal's median to the median height of its excursions), counted again only once the signal has fallen below the threshold " +
+        "by the hysteresis and after the refractory time; a signal with no excursion standing clear of its noise has no events and " +
+        "does not turn. The levels of each run are in the text summary.";
+
+    private static readonly (string Term, string Text) SignalPhaseNote = ("Signal to protophase", "The signal is plotted against " +
+        "itself a delay earlier, (s(t), s(t − τ)), which traces a closed curve for a system on a limit cycle (Takens 1981); τ is a " +
+        "quarter of the events' median width. The protophase is the arc length along the mean orbit, scaled to 2π per turn, of each " +
+        "sample's nearest point on it; a cycle whose protophase runs backwards or does not go once round is left out. The onset and " +
+        "the periods do not depend on the choice of protophase; a and b are in its units.");
 
     /// <summary>The onset note when one route (or neither) gave an estimate: only the fits that gave one are described.</summary>
     private static (string Term, string Text) OneRouteNote(bool bottleneck, bool period)

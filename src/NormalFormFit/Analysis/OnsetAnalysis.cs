@@ -243,7 +243,7 @@ public static class OnsetAnalysis
         var dof = curve.DegreesOfFreedom;
         var limit = LawMisfitFactor * MathNet.Numerics.Distributions.ChiSquared.InvCDF(dof, 0.999) / dof;
         return curve.ReducedChiSquare <= limit ? null : new Diagnostic(Severity.Warning, "law-misfit", string.Create(CultureInfo.InvariantCulture,
-            $"the {est.Route.Noun()} route's law ({curve.Description}) misses its runs by far more than their errors allow (χ²/dof = {curve.ReducedChiSquare:G3} on {dof} degrees of freedom, above {limit:G3}): its interval is widened by √(χ²/dof), but a law of the wrong shape can be biased beyond that, so read the interval as too narrow and compare with the other route"));
+            $"the {est.Route.Noun()} route's law ({curve.Description}) misses its runs by far more than their errors allow (χ²/dof = {Numerics.ErrorDigits.Plain(curve.ReducedChiSquare, 3)} on {dof} degrees of freedom, above {Numerics.ErrorDigits.Plain(limit, 3)}): its interval is widened by √(χ²/dof), but a law of the wrong shape can be biased beyond that, so read the interval as too narrow and compare with the other route"));
     }
 
     private static List<TrendPoint> APoints(IReadOnlyList<RunResult> runs, HashSet<RunResult> excluded) => runs

@@ -41,7 +41,7 @@ public static class RecordingAnalyzer
                 }
 
                 pre.Add(new Diagnostic(Severity.Info, "orbit", string.Create(CultureInfo.InvariantCulture,
-                    $"ellipse centre ({orbit.Ellipse.CentreX:G5}, {orbit.Ellipse.CentreY:G5}), semi-axes {orbit.Ellipse.SemiMajor:G4} and {orbit.Ellipse.SemiMinor:G4}, tilt {orbit.Ellipse.Tilt * 180 / Math.PI:F1}°, RMS deviation {orbit.RmsDeviation:P2}; turning {orbit.Sense}"),
+                    $"ellipse centre ({Numerics.ErrorDigits.Plain(orbit.Ellipse.CentreX, 5)}, {Numerics.ErrorDigits.Plain(orbit.Ellipse.CentreY, 5)}), semi-axes {Numerics.ErrorDigits.Plain(orbit.Ellipse.SemiMajor, 4)} and {Numerics.ErrorDigits.Plain(orbit.Ellipse.SemiMinor, 4)}, tilt {orbit.Ellipse.Tilt * 180 / Math.PI:F1}°, RMS deviation {orbit.RmsDeviation:P2}; turning {orbit.Sense}"),
                     file));
                 var fromPositions = FromPhase(phase, param, file, label, options, RecordingKind.Positions, orbit, pre);
                 return fromPositions.Value is { } run
@@ -74,10 +74,10 @@ public static class RecordingAnalyzer
         var tu = signal.TimeUnit is { } timeUnit ? " " + timeUnit : string.Empty;
         pre.Add(double.IsFinite(s.Threshold)
             ? new Diagnostic(Severity.Info, "signal-events", string.Create(ic,
-                $"{s.Count} event(s) in column '{s.Column}': upward crossings of {s.Threshold:G5}{su} ({(s.ThresholdGiven ? "given" : $"halfway from the baseline {s.Baseline:G5}{su} to the tip level {s.TipLevel:G5}{su}")}), hysteresis {s.Hysteresis:G4}{su}, refractory time {s.RefractoryTime:G4}{tu}; {s.Glitches} glitch(es) and {s.WithinRefractory} crossing(s) within the refractory time left out"),
+                $"{s.Count} event(s) in column '{s.Column}': upward crossings of {Numerics.ErrorDigits.Plain(s.Threshold, 5)}{su} ({(s.ThresholdGiven ? "given" : $"halfway from the baseline {Numerics.ErrorDigits.Plain(s.Baseline, 5)}{su} to the tip level {Numerics.ErrorDigits.Plain(s.TipLevel, 5)}{su}")}), hysteresis {Numerics.ErrorDigits.Plain(s.Hysteresis, 4)}{su}, refractory time {Numerics.ErrorDigits.Plain(s.RefractoryTime, 4)}{tu}; {s.Glitches} glitch(es) and {s.WithinRefractory} crossing(s) within the refractory time left out"),
                 file)
             : new Diagnostic(Severity.Info, "signal-silent", string.Create(ic,
-                $"column '{s.Column}' has no excursions of one height standing {2 * SignalEvents.ClearOfNoise:G} noise standard deviations ({2 * SignalEvents.ClearOfNoise * s.NoiseSd:G3}{su}) above its median {s.Baseline:G5}{su}: no events, a run that does not turn; give --event-threshold if the events are smaller"),
+                $"column '{s.Column}' has no excursions of one height standing {2 * SignalEvents.ClearOfNoise:G} noise standard deviations ({Numerics.ErrorDigits.Plain(2 * SignalEvents.ClearOfNoise * s.NoiseSd, 3)}{su}) above its median {Numerics.ErrorDigits.Plain(s.Baseline, 5)}{su}: no events, a run that does not turn; give --event-threshold if the events are smaller"),
                 file));
         // A protophase from the delay-embedded orbit gives the bottleneck; without one the run keeps its periods only.
         var (phase, orbit, orbitDiags) = (options ?? RunOptions.Default).SignalEvents.Protophase
@@ -87,12 +87,18 @@ public static class RecordingAnalyzer
         if (phase is not null && orbit is not null)
         {
             pre.Add(new Diagnostic(Severity.Info, "signal-orbit", string.Create(ic,
-                $"protophase: angle about ({orbit.CentreX:G4}, {orbit.CentreY:G4}){su} on the orbit (s(t), s(t − {orbit.Delay:G3}{tu})), delay {orbit.DelayRule}; backward fraction {orbit.BackwardFraction:P1}; {orbit.Cycles - orbit.CyclesLeftOut} of {orbit.Cycles} cycle(s) monotone"),
+                $"protophase: angle about ({Numerics.ErrorDigits.Plain(orbit.CentreX, 4)}, {Numerics.ErrorDigits.Plain(orbit.CentreY, 4)}){su} on the orbit (s(t), s(t − {Numerics.ErrorDigits.Plain(orbit.Delay, 3)}{tu})), delay {orbit.DelayRule}; backward fraction {orbit.BackwardFraction:P1}; {orbit.Cycles - orbit.CyclesLeftOut} of {orbit.Cycles} cycle(s) monotone"),
                 file));
             var fromPhase = FromPhase(phase, param, file, label, options, RecordingKind.Signal, null, pre);
             if (fromPhase.Value is { } phased)
             {
-                return new Loaded<RunResult>(phased with { Events = s, SignalOrbit = orbit, Dropped = signal.Dropped }, fromPhase.Diagnostics);
+                return new Loaded<RunResult>(phased with
+                {
+                    Events = s,
+                    SignalOrbit = orbit,
+                    SignalOrbitView = SignalOrbitView.From(signal, phase, orbit, phased.Bottleneck?.Phase.Value ?? double.NaN, phased.Direction),
+                    Dropped = signal.Dropped,
+                }, fromPhase.Diagnostics);
             }
 
             return fromPhase;
@@ -122,7 +128,7 @@ public static class RecordingAnalyzer
         }
 
         var dropped = phase.Dropped with { PhaseJumps = phase.Dropped.PhaseJumps + jumps };
-        var source = new RunSource(kind, orbit, pre) { Dropped = dropped };
+        var source = new RunSource(kind, orbit, pre) { Dropped = dropped, TimeUnit = phase.TimeUnit };
         return new Loaded<RunResult>(RunAnalyzer.Analyze(trajectory, param, file, label, options, source), []);
     }
 }

@@ -127,7 +127,7 @@ public static class RunAnalyzer
             found.Diagnostics.Add(relaxation is null
                 ? Info(file, "no-relaxation", "the run does not settle visibly inside the record (or starts at rest): no relaxation rate")
                 : Info(file, "relaxation", string.Create(CultureInfo.InvariantCulture,
-                    $"the phase settles at {relaxation.RestPhase:F3} rad with relaxation rate κ = {relaxation.Rate.Value:G4} ± {relaxation.Rate.StandardError:G2}")));
+                    $"the phase settles at {relaxation.RestPhase:F3} rad with relaxation rate κ = {RateText(relaxation.Rate)} per {source.TimeUnit ?? "time unit"}")));
             return Result(turns, smoothing, null, null, null, relaxation: relaxation);
         }
 
@@ -214,4 +214,10 @@ public static class RunAnalyzer
     }
 
     private static Diagnostic Info(string file, string code, string message) => new(Severity.Info, code, message, file);
+
+    /// <summary>A rate with its standard error, the value to the error's second significant digit (<see cref="Numerics.ErrorDigits"/>).</summary>
+    private static string RateText(Estimate rate) =>
+        double.IsFinite(rate.StandardError) && rate.StandardError > 0
+            ? rate.Value.ToString(Numerics.ErrorDigits.Format(rate.StandardError), CultureInfo.InvariantCulture) + " ± " + rate.StandardError.ToString(Numerics.ErrorDigits.Format(rate.StandardError), CultureInfo.InvariantCulture)
+            : Numerics.ErrorDigits.Plain(rate.Value, 4);
 }

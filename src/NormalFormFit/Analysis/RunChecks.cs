@@ -115,8 +115,12 @@ public static class RunChecks
 
     /// <summary>Event times: no interval within a segment, so nothing to time.</summary>
     public static RunFinding? NoIntervals(string file, int events, int intervals) => intervals == 0
-        ? new(RunFlag.NotTurning, Info(file, "not-turning",
-            $"only {events} event(s) in a row: no interval can be timed; the run is left out of the onset fits"))
+        ? new(RunFlag.NotTurning, Info(file, "not-turning", events switch
+        {
+            0 => "no events: the run does not turn, and there is no interval to time; it is left out of the onset fits",
+            1 => "only one event: no interval can be timed; the run is left out of the onset fits",
+            _ => $"{events} events, but a gap in the record lies between every two of them: no interval can be timed; the run is left out of the onset fits",
+        }))
         : null;
 
     /// <summary>The measured period differs from π/√(ab) by more than <see cref="FarFromOnsetTolerance"/>.</summary>
@@ -149,7 +153,7 @@ public static class RunChecks
         var diff = Math.Abs(fromField.Value - measured.Value);
         return double.IsFinite(se) && diff > FieldPeriodStandardErrors * se && diff > FieldPeriodTolerance * measured.Value
             ? new(RunFlag.FieldPeriodMismatch, Warn(file, "field-period-mismatch", string.Create(Inv,
-                $"∮dθ/θ̇ = {fromField.Value:G4} differs from the measured period {measured.Value:G4} by more than three standard errors: the reconstructed field is distorted (oversmoothed or coarse sampling)")))
+                $"∮dθ/θ̇ = {Numerics.ErrorDigits.Plain(fromField.Value, 4)} differs from the measured period {Numerics.ErrorDigits.Plain(measured.Value, 4)} by more than three standard errors: the reconstructed field is distorted (oversmoothed or coarse sampling)")))
             : null;
     }
 
@@ -177,14 +181,14 @@ public static class RunChecks
         return double.IsFinite(bias) && double.IsFinite(bottleneck.A.StandardError)
             && Math.Abs(bias) > WindowBiasStandardErrors * bottleneck.A.StandardError && Math.Abs(bias) > WindowBiasTolerance * Math.Abs(bottleneck.A.Value)
             ? new(RunFlag.WindowBias, Info(file, "window-bias", string.Create(Inv,
-                $"a changes by {bias:G3} when the fit window is halved: the field is not quadratic over the window")))
+                $"a changes by {Numerics.ErrorDigits.Plain(bias, 3)} when the fit window is halved: the field is not quadratic over the window")))
             : null;
     }
 
     /// <summary>Phase diffusion shortens the bottleneck passage (<see cref="NoiseEstimate.NoiseDominated"/>).</summary>
     public static RunFinding? NoiseDominated(string file, NoiseEstimate? noise) => noise is { NoiseDominated: true }
         ? new(RunFlag.NoiseDominated, Warn(file, "noise-dominated", string.Create(Inv,
-            $"phase diffusion D = {noise.Diffusion.Value:G3} ± {noise.Diffusion.StandardError:G2} shortens the bottleneck passage to {noise.PassageRatio:P0} of π/√(ab): noise, not the bottleneck, sets the period; the run is left out of the onset fits")))
+            $"phase diffusion D = {Numerics.ErrorDigits.Plain(noise.Diffusion.Value, 3)} ± {Numerics.ErrorDigits.Plain(noise.Diffusion.StandardError, 2)} shortens the bottleneck passage to {noise.PassageRatio:P0} of π/√(ab): noise, not the bottleneck, sets the period; the run is left out of the onset fits")))
         : null;
 
     /// <summary>

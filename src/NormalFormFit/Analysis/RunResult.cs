@@ -126,6 +126,9 @@ public sealed record RunResult(
     /// <summary>For a single-signal recording with a protophase: the delay-embedded orbit and its centre; null otherwise.</summary>
     public SignalOrbit? SignalOrbit { get; init; }
 
+    /// <summary>The embedded samples, mean orbit, centre and bottleneck for the orbit figure (single signals with a protophase only; not kept in run lines).</summary>
+    public SignalOrbitView? SignalOrbitView { get; init; }
+
     /// <summary>Rows of the run file not used as samples, by reason (none when not known, e.g. run lines of an earlier version).</summary>
     public DroppedRows Dropped { get; init; } = DroppedRows.None;
 }

@@ -39,14 +39,14 @@ public static class RunSetSanity
         if (!double.IsFinite(max - min) || largest > MaxAbsParam)
         {
             return new Diagnostic(Severity.Error, "absurd-params",
-                string.Create(ic, $"parameter values as large as {largest:G4} cannot be fitted (|μ| must stay below 1e15); give μ in units where the runs' values are moderate (e.g. subtract a reference value)"),
+                string.Create(ic, $"parameter values as large as {Numerics.ErrorDigits.Plain(largest, 4)} cannot be fitted (|μ| must stay below 10¹⁵); give μ in units where the runs' values are moderate (e.g. subtract a reference value)"),
                 source);
         }
 
         if (values.Count > 1 && max - min < MinRelativeSpan * largest)
         {
             return new Diagnostic(Severity.Error, "absurd-params",
-                string.Create(ic, $"the parameter values span {max - min:G3}, less than {MinRelativeSpan:G0} of their size {largest:G6}: double precision cannot resolve the differences; give μ relative to a reference value"),
+                string.Create(ic, $"the parameter values span {Numerics.ErrorDigits.Plain(max - min, 3)}, less than {Numerics.ErrorDigits.Plain(MinRelativeSpan, 0)} of their size {Numerics.ErrorDigits.Plain(largest, 6)}: double precision cannot resolve the differences; give μ relative to a reference value"),
                 source);
         }
 
@@ -75,7 +75,7 @@ public static class RunSetSanity
         return max - min <= SamePeriodTolerance * max
             ? new Diagnostic(Severity.Error, "same-periods",
                 string.Create(CultureInfo.InvariantCulture,
-                    $"every run has the same period, {max:G6}, to {SamePeriodTolerance:G0}: it does not change with the parameter, so the runs show no approach to an onset; check --kind and the columns (evenly spaced sample times read as event times give this)"),
+                    $"every run has the same period, {Numerics.ErrorDigits.Plain(max, 6)}, to {Numerics.ErrorDigits.Plain(SamePeriodTolerance, 0)}: it does not change with the parameter, so the runs show no approach to an onset; check --kind and the columns (evenly spaced sample times read as event times give this)"),
                 source)
             : null;
     }

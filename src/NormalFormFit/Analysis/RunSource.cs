@@ -15,6 +15,9 @@ public sealed record RunSource(RecordingKind Kind, OrbitSummary? Orbit, IReadOnl
     /// <summary>Rows of the run file not used as samples, by reason.</summary>
     public DroppedRows Dropped { get; init; } = DroppedRows.None;
 
+    /// <summary>Unit of the run's time column (for rates in messages, e.g. κ per ms); null when not known.</summary>
+    public string? TimeUnit { get; init; }
+
     /// <summary>A phase recording read without remarks.</summary>
     public static RunSource Phase { get; } = new(RecordingKind.Phase, null, []);
 

@@ -127,7 +127,7 @@ public static class OrbitPhase
         {
             var why = visited < MinSectors
                 ? $"they cover {visited} of 12 sectors of 30° round the fitted ellipse"
-                : $"the angle round the fitted ellipse jumps by {typicalStep:G3} rad between neighbouring samples in the median";
+                : $"the angle round the fitted ellipse jumps by {Numerics.ErrorDigits.Plain(typicalStep, 3)} rad between neighbouring samples in the median";
             diags.Add(NoOrbit(positions.File, string.Create(ic,
                 $"the positions do not wind round an orbit ({why}); expected a marker going round, or a run at rest beside runs that turn: check the x and y columns (a single signal against time is not a position pair)")) with
             { Code = "no-winding" });

@@ -57,7 +57,7 @@ public static class PhaseChecks
         if (typical > MaxTypicalStep)
         {
             return new Diagnostic(Severity.Error, "not-a-phase", string.Create(ic,
-                $"the column {column} as the phase does not behave like one: neighbouring samples differ by {typical:G3} rad (modulo a turn) in the median, too much to follow; {hint}"),
+                $"the column {column} as the phase does not behave like one: neighbouring samples differ by {Numerics.ErrorDigits.Plain(typical, 3)} rad (modulo a turn) in the median, too much to follow; {hint}"),
                 recording.File);
         }
 
@@ -67,7 +67,7 @@ public static class PhaseChecks
         if (range > twoPi * 1.05 && beyondATurn && net < 0.5 * range)
         {
             return new Diagnostic(Severity.Error, "not-a-phase", string.Create(ic,
-                $"the column {column} as the phase does not behave like one: its values run from {min:G4} to {max:G4} rad ({range / twoPi:G3} turns) but advance only {net / twoPi:G3} turns from first to last: they neither stay within a turn nor wind; {hint}"),
+                $"the column {column} as the phase does not behave like one: its values run from {Numerics.ErrorDigits.Plain(min, 4)} to {Numerics.ErrorDigits.Plain(max, 4)} rad ({Numerics.ErrorDigits.Plain(range / twoPi, 3)} turns) but advance only {Numerics.ErrorDigits.Plain(net / twoPi, 3)} turns from first to last: they neither stay within a turn nor wind; {hint}"),
                 recording.File);
         }
 

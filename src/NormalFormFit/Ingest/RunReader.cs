@@ -344,7 +344,9 @@ public static class RunReader
             if (gaps > 0)
             {
                 diagnostics.Add(new Diagnostic(Severity.Info, "gaps", string.Create(CultureInfo.InvariantCulture,
-                    $"{gaps} gap(s) longer than {GapFactor:G} typical sampling steps (longest {longest:G3} steps): the phase is followed across a gap shorter than half the local revolution time"),
+                    $"{gaps} gap(s) longer than {GapFactor:G} typical sampling steps (longest {Numerics.ErrorDigits.Plain(longest, 3)} steps): {(layout.Kind == RecordingKind.Signal
+                        ? "the signal is split there: no interval between events is timed across a gap, and a delay-embedded orbit never spans one"
+                        : "the phase is followed across a gap shorter than half the local revolution time, and the run is split at a longer one")}"),
                     name));
             }
         }

@@ -123,7 +123,7 @@ public static class SignalEvents
         if (!(max - min > 1e-12 * Math.Max(Math.Abs(max), Math.Abs(min))))
         {
             return Loaded.Fail<DetectedEvents>(new Diagnostic(Severity.Error, "signal-constant", string.Create(Inv,
-                $"{where} is constant ({max:G6}) over all {n} samples: no events can be found; check that it is the recorded signal (--signal-column) and that the recording was on"),
+                $"{where} is constant ({Numerics.ErrorDigits.Plain(max, 6)}) over all {n} samples: no events can be found; check that it is the recorded signal (--signal-column) and that the recording was on"),
                 signal.File));
         }
 
@@ -211,7 +211,7 @@ public static class SignalEvents
     }
 
     private static Diagnostic Clip(SignalRecording signal, string where, double level, bool top, int n) => new(Severity.Error, "signal-clipped", string.Create(Inv,
-        $"{where} sits at its {(top ? "maximum" : "minimum")}, {level:G6}, for runs of samples (over {ClippedFraction:P1} of {n}): the recording was clipped (amplifier or converter out of range), so event shapes and times are not trustworthy; record again with a larger input range or less gain"),
+        $"{where} sits at its {(top ? "maximum" : "minimum")}, {Numerics.ErrorDigits.Plain(level, 6)}, for runs of samples (over {ClippedFraction:P1} of {n}): the recording was clipped (amplifier or converter out of range), so event shapes and times are not trustworthy; record again with a larger input range or less gain"),
         signal.File);
 
     // Null when not clipped at this extreme; true for the top, false for the bottom.

@@ -113,7 +113,7 @@ public static class PeriodRoute
         if (best.Law is { } bl && Misfits(bl.Law) && (raised || ReferenceEquals(best.Law, top.Law)))
         {
             diags.Add(new Diagnostic(Severity.Warning, "period-law-truncated", string.Create(inv,
-                $"the period route's best law ({best.Law!.Law.Description}) misses its runs far beyond their errors (χ²/dof = {best.Law.Law.ReducedChiSquare:G3}): the expansion of the period is truncated; {(raised ? "the interval carries the change the next term makes" : "no higher order can be fitted to these runs, so the onset may lie beyond the interval")}; measure more runs close to onset")));
+                $"the period route's best law ({best.Law!.Law.Description}) misses its runs far beyond their errors (χ²/dof = {Numerics.ErrorDigits.Plain(best.Law.Law.ReducedChiSquare, 3)}): the expansion of the period is truncated; {(raised ? "the interval carries the change the next term makes" : "no higher order can be fitted to these runs, so the onset may lie beyond the interval")}; measure more runs close to onset")));
         }
         else if (raised)
         {

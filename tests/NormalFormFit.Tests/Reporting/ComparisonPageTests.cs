@@ -130,7 +130,8 @@ public partial class ComparisonPageTests
     [Theory]
     [InlineData(7.6318e8, 4, "7.632×10⁸")]
     [InlineData(1.29e10, 3, "1.29×10¹⁰")]
-    [InlineData(9.9e-5, 2, "9.9×10⁻⁵")]
+    [InlineData(9.9e-5, 2, "0.000099")] // plain from 10⁻⁶ (docs/glossary.md, Numbers)
+    [InlineData(9.9e-7, 2, "9.9×10⁻⁷")]
     [InlineData(0.648, 3, "0.648")]
     [InlineData(6581.6, 4, "6582")]
     [InlineData(9.9999e8, 3, "1×10⁹")]

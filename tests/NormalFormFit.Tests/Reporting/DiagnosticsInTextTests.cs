@@ -53,7 +53,7 @@ public partial class DiagnosticsInTextTests
     }
 
     /// <summary>Spike times of the rotor θ̇ = μ − sin θ, period 2π/√(μ² − 1) (Adler 1946), 1% jitter; one run without events.</summary>
-    private static string WriteEvents(RecordingFiles files)
+    internal static string WriteEvents(RecordingFiles files)
     {
         var rng = new Random(1603);
         foreach (var mu in new[] { 1.01, 1.02, 1.04, 1.07, 1.1, 1.15, 1.2 })
@@ -75,7 +75,7 @@ public partial class DiagnosticsInTextTests
     /// once per period of the rotor θ̇ = μ − sin θ (period 2π/√(μ² − 1), Adler 1946); two silent sweeps below onset, and a
     /// gap of blank rows in each sweep.
     /// </summary>
-    private static string WriteSignal(RecordingFiles files)
+    internal static string WriteSignal(RecordingFiles files)
     {
         var rng = new Random(1604);
         var manifest = new StringBuilder("file,I_app [pA]\n");
@@ -109,7 +109,7 @@ public partial class DiagnosticsInTextTests
 
     private static double Gauss(Random rng) => Math.Sqrt(-2 * Math.Log(1 - rng.NextDouble())) * Math.Cos(2 * Math.PI * rng.NextDouble());
 
-    private static string RepoRoot()
+    internal static string RepoRoot()
     {
         var dir = new DirectoryInfo(AppContext.BaseDirectory);
         while (dir is not null && !File.Exists(Path.Combine(dir.FullName, "NormalFormFit.sln")))

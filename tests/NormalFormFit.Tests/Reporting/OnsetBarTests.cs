@@ -109,10 +109,23 @@ public class OnsetBarTests
     }
 
     [Theory]
-    [InlineData(0.0, 0.05, 16, false)] // 0.05 of the axis: about 40 px, wider than a 16 px mark
-    [InlineData(0.0, 0.01, 16, true)] // about 8 px
+    [InlineData(0.0, 0.05, 16, false)] // 0.05 of an 800 px data area: 40 px, wider than a 16 px mark
+    [InlineData(0.0, 0.01, 16, true)] // 8 px
     [InlineData(0.0, 0.01, 6, false)] // wider than a 6 px mark
     [InlineData(double.NegativeInfinity, 0.0, 16, false)] // unbounded: drawn to the edge, never narrow
     public void NarrownessIsJudgedInPixelsOfTheDataArea(double low, double high, int markSize, bool narrow) =>
-        Assert.Equal(narrow, ReportFigures.NarrowerThanMark(new Interval(low, high), 1.0, markSize));
+        Assert.Equal(narrow, ReportFigures.NarrowerThanMark(new Interval(low, high), 1.0, markSize, 800));
+
+    [Fact]
+    public void TheDataAreaIsMeasuredOnTheFigure_NotAssumed()
+    {
+        // The demo's trend figure at 960 × 600: the data area is what the layout leaves, less than the figure's width,
+        // and it is the span the axis limits map onto (GetPixel after a render).
+        var figure = ReportFigures.Trend(DemoReport.Report, bottleneckRoute: true)!;
+        var width = ReportFigures.DataAreaWidth(figure.Plot);
+        var limits = figure.Plot.Axes.GetLimits();
+        var span = figure.Plot.GetPixel(new Coordinates(limits.Right, 0)).X - figure.Plot.GetPixel(new Coordinates(limits.Left, 0)).X;
+        Assert.InRange(width, 500, ReportFigures.DefaultWidth - 20);
+        Assert.Equal(span, width, 1.0);
+    }
 }
