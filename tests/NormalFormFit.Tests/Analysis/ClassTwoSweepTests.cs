@@ -68,7 +68,7 @@ public class ClassTwoSweepTests(ITestOutputHelper output)
 
         // And the summary says so in words (FiniteRateAtOnset): the lowest steadily firing run already fires at a rate
         // that no square-root onset above the silent run allows. Measured (2026-12-03): the run at 7 μA/cm² (period
-        // 16.9 ms, 32 intervals) fires at 0.60 of the rate at 30 μA/cm², against at most 0.39 for a rate growing like
+        // 16.9 ms, 32 intervals) fires at 0.60 ± 0.01 of the rate at 30 μA/cm², against at most 0.38 for a rate growing like
         // √(μ − μc) above 3 μA/cm².
         var evidence = root.GetProperty("scaling").GetProperty("evidence").GetString();
         Assert.Contains("not a saddle-node on the circle", evidence, StringComparison.Ordinal);
