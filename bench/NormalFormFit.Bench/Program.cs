@@ -46,6 +46,16 @@ public static class Program
             return SignalCoverage(args[1..]);
         }
 
+        if (args.Length > 0 && args[0] == "signal-onsets")
+        {
+            return SignalOnsets(args[1..]);
+        }
+
+        if (args.Length > 0 && args[0] == "signal-stages")
+        {
+            return SignalStages(args[1..]);
+        }
+
         if (args.Length > 0 && args[0] == "memory")
         {
             return Memory(args[1..]);
@@ -236,6 +246,124 @@ public static class Program
         var sd = Math.Sqrt(results.Sum(r => (r.Value - mean) * (r.Value - mean)) / (seeds - 1));
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"noise {sigma} uA/cm2*sqrt(ms), {duration} ms sweeps, spacing {spacing}: covers {results.Count(r => r.Low <= onset && onset <= r.High)}/{seeds}; mean bias {mean - onset:F4}; mean se {results.Average(r => r.Se):F4}; sd of estimates {sd:F4}"));
+        return 0;
+    }
+
+    // `signal-onsets MODEL FOLDER SEED...`: the signal acceptance sweeps of the class-I models (MODEL `ml`: Morris–Lecar,
+    // knee −2, −1, −0.4 (silent), +0.25 … +7 μA/cm², noise current 1 μA/cm²·√ms; `wb`: Wang–Buzsáki, knee −0.06, −0.03,
+    // −0.01 (silent), +0.01 … +0.22, noise current 0.02 μA/cm²·√ms; both 4 s at 20 kHz with 0.3 mV of measurement noise,
+    // invented demo levels), analysed with the protophase, one line per seed: both routes' onsets, standard errors,
+    // 95 % intervals and whether they cover the knee of I∞(V) (a measurement, not a test).
+    private static int SignalOnsets(string[] args)
+    {
+        var model = args[0];
+        var folder = args[1];
+        var seeds = args[2..].Select(a => int.Parse(a, CultureInfo.InvariantCulture)).ToArray();
+        var ml = NormalFormFit.Simulation.MorrisLecar.ClassOne;
+        var wb = NormalFormFit.Simulation.WangBuzsaki.Standard;
+        var onset = model == "ml" ? ml.RestSaddleNode().Current : wb.RestSaddleNode().Current;
+        double[] offsets = model == "ml" ? [-2, -1, -0.4, 0.25, 0.5, 1, 1.75, 2.5, 3.5, 5, 7] : [-0.06, -0.03, -0.01, 0.01, 0.02, 0.04, 0.07, 0.11, 0.16, 0.22];
+        var nearest = offsets.Where(o => o > 0).Min();
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{model}: onset (knee of I∞(V)) {onset:R}; nearest firing sweep +{nearest}"));
+        foreach (var seed in seeds)
+        {
+            var dir = Path.Combine(folder, string.Create(CultureInfo.InvariantCulture, $"{model}_{seed}"));
+            Directory.CreateDirectory(dir);
+            if (!File.Exists(Path.Combine(dir, "manifest.csv")))
+            {
+                Parallel.For(0, offsets.Length, i =>
+                {
+                    var v = model == "ml" ? ml.Sweep(onset + offsets[i], 4000, 0.05, 0, 1.0, seed + i).V : wb.Sweep(onset + offsets[i], 4000, 0.05, 0.02, seed + i);
+                    var noise = new Random(seed + 7919 + i);
+                    var text = new System.Text.StringBuilder("time_ms,Vm_mV\n");
+                    for (var k = 0; k < v.Length; k++)
+                    {
+                        text.Append(CultureInfo.InvariantCulture, $"{k * 0.05:F2},{v[k] + (0.3 * Math.Sqrt(-2 * Math.Log(1 - noise.NextDouble())) * Math.Cos(2 * Math.PI * noise.NextDouble())):F3}\n");
+                    }
+
+                    File.WriteAllText(Path.Combine(dir, string.Create(CultureInfo.InvariantCulture, $"s_{i:00}.csv")), text.ToString());
+                });
+                var manifest = new System.Text.StringBuilder("file,I_app [uA/cm2]\n");
+                for (var i = 0; i < offsets.Length; i++)
+                {
+                    manifest.Append(CultureInfo.InvariantCulture, $"s_{i:00}.csv,{onset + offsets[i]:R}\n");
+                }
+
+                File.WriteAllText(Path.Combine(dir, "manifest.csv"), manifest.ToString());
+            }
+
+            var options = new NormalFormFit.Analysis.AnalyzeOptions
+            {
+                Run = NormalFormFit.Analysis.RunOptions.Default with
+                {
+                    SignalEvents = NormalFormFit.Ingest.SignalEventOptions.Default with { Protophase = true },
+                    Bottleneck = NormalFormFit.Bottleneck.BottleneckOptions.Default with { RemoveTaylorRemainder = Environment.GetEnvironmentVariable("SIGNAL_ONSETS_NO_TAYLOR") is null },
+                },
+            };
+            var clock = Stopwatch.StartNew();
+            var report = NormalFormFit.Analysis.ManifestAnalyzer.Analyze(Path.Combine(dir, "manifest.csv"), options).Value;
+            if (report is null)
+            {
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"seed {seed}: no report"));
+                continue;
+            }
+
+            string Line(NormalFormFit.Onset.OnsetEstimate e) => string.Create(CultureInfo.InvariantCulture,
+                $"{e.Value:F4} ± {e.StandardError:F4} [{e.Ci95.Low:F4}, {e.Ci95.High:F4}] off {(e.Value - onset) / nearest:P0} {(e.Ci95.Low <= onset && onset <= e.Ci95.High ? "covers" : "MISSES")} deg {e.Trend?.Coefficients.Length - 1}");
+            var aOver = string.Join(" ", report.Runs.Where(r => r.Bottleneck is not null).Select(r => string.Create(CultureInfo.InvariantCulture, $"{r.Bottleneck!.A.Value / (r.Param - onset):G3}")));
+            if (Environment.GetEnvironmentVariable("SIGNAL_ONSETS_RUNS") is not null)
+            {
+                foreach (var r in report.Runs)
+                {
+                    var b = r.Bottleneck;
+                    Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                        $"  {r.Param - onset,8:G4}: θ* {b?.Phase.Value:F3} a {b?.A.Value:G4} ± {b?.A.StandardError:G2} b {b?.B.Value:G4} T {r.Period?.Measured.Value:G5} π/√(ab) {r.Period?.FromBottleneck.Value:G5} L {r.SignalOrbit?.LoopLength:G4} delay {r.SignalOrbit?.Delay:G3} centre ({r.SignalOrbit?.CentreX:G4}, {r.SignalOrbit?.CentreY:G4}) left out {r.SignalOrbit?.CyclesLeftOut}/{r.SignalOrbit?.Cycles}"));
+                    if (r.Field is { } f && Environment.GetEnvironmentVariable("SIGNAL_ONSETS_FIELD") is not null)
+                    {
+                        Console.WriteLine("    field " + string.Join(" ", Enumerable.Range(0, f.Centres.Length).Where(j => j % 2 == 0).Select(j => string.Create(CultureInfo.InvariantCulture, $"{f.Centres[j]:F2}:{f.Velocity[j]:G3}"))));
+                    }
+                }
+            }
+
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"seed {seed}: bottleneck {Line(report.FromBottleneck)}; period {Line(report.FromPeriod)}; verdict {report.Verdict.Kind}; runs with a {report.Runs.Count(r => r.Bottleneck is not null)}; a/(I−Ic) {aOver}; {clock.Elapsed.TotalSeconds:F1} s"));
+        }
+
+        return 0;
+    }
+
+    // `signal-stages FILE`: one signal run's stages timed with a stopwatch (best of 3, one thread): reading, event
+    // detection, the protophase, and the run analysis of the protophase.
+    private static int SignalStages(string[] args)
+    {
+        var file = args[0];
+        var best = new double[4];
+        Array.Fill(best, double.MaxValue);
+        var me = Process.GetCurrentProcess();
+        double Cpu()
+        {
+            me.Refresh();
+            return me.TotalProcessorTime.TotalSeconds;
+        }
+
+        for (var k = 0; k < 3; k++)
+        {
+            var c0 = Cpu();
+            var rec = (SignalRecording)RunReader.ReadRecording(file, RunReadOptions.Default, file).Value!;
+            var c1 = Cpu();
+            var found = SignalEvents.Detect(rec).Value!;
+            var c2 = Cpu();
+            var (p, _, _) = SignalPhase.FromSignal(rec, found);
+            var c3 = Cpu();
+            NormalFormFit.Analysis.RunAnalyzer.Analyze(Trajectory.FromRecording(p!), 1, file, null, NormalFormFit.Analysis.RunOptions.Default);
+            var c4 = Cpu();
+            best[0] = Math.Min(best[0], c1 - c0);
+            best[1] = Math.Min(best[1], c2 - c1);
+            best[2] = Math.Min(best[2], c3 - c2);
+            best[3] = Math.Min(best[3], c4 - c3);
+        }
+
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"CPU seconds, best of 3: read {best[0]:F2}, events {best[1]:F2}, protophase {best[2]:F2}, run analysis {best[3]:F2}; total {best.Sum():F2}"));
         return 0;
     }
 

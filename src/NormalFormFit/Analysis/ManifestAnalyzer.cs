@@ -101,28 +101,73 @@ public static class ManifestAnalyzer
         var readDiags = new IReadOnlyList<Diagnostic>[entries.Count];
         var done = 0;
         string Display(ManifestEntry e) => Path.Combine(Path.GetDirectoryName(manifestPath) ?? string.Empty, e.File);
-        void AnalyzeOne(int i, Ellipse? sharedOrbit)
+        void AnalyzeRead(int i, Loaded<RunRecording> rec, Ellipse? sharedOrbit, RunOptions runOptions, Loaded<DetectedEvents>? detected)
         {
             var e = entries[i];
-            var display = Display(e);
-            var rec = RunReader.ReadRecording(fullPaths[i], readOptions[i], display);
             readDiags[i] = rec.Diagnostics;
             if (rec.Value is not null)
             {
-                var run = RecordingAnalyzer.Analyze(rec.Value, e.Param, e.File, e.Label, options.Run, rec.Diagnostics, sharedOrbit);
+                var run = RecordingAnalyzer.Analyze(rec.Value, e.Param, e.File, e.Label, runOptions, rec.Diagnostics, sharedOrbit, detected);
                 results[i] = run.Value;
                 if (run.Value is null)
                 {
-                    readDiags[i] = [.. run.Diagnostics.Select(d => d with { File = display })];
+                    readDiags[i] = [.. run.Diagnostics.Select(d => d with { File = Display(e) })];
                 }
             }
         }
 
-        Parallel.For(0, entries.Count, new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, options.Parallelism) }, i =>
+        Loaded<RunRecording> ReadOne(int i) => RunReader.ReadRecording(fullPaths[i], readOptions[i], Display(entries[i]));
+        void AnalyzeOne(int i, Ellipse? sharedOrbit) => AnalyzeRead(i, ReadOne(i), sharedOrbit, options.Run, null);
+        var parallel = new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, options.Parallelism) };
+        if (!options.Run.SignalEvents.Protophase || options.Run.SignalEvents.Embedding is not null)
         {
-            AnalyzeOne(i, null);
-            progress?.Report(Interlocked.Increment(ref done));
-        });
+            Parallel.For(0, entries.Count, parallel, i =>
+            {
+                AnalyzeOne(i, null);
+                progress?.Report(Interlocked.Increment(ref done));
+            });
+        }
+        else
+        {
+            // A protophase from single signals: one embedding for the whole set (SignalEmbedding.FromRuns), chosen from
+            // every signal run's events before any is analysed. Signal runs are held (recording and events) until then;
+            // other runs are analysed at once.
+            var held = new Loaded<RunRecording>?[entries.Count];
+            var detections = new Loaded<DetectedEvents>?[entries.Count];
+            Parallel.For(0, entries.Count, parallel, i =>
+            {
+                var rec = ReadOne(i);
+                if (rec.Value is SignalRecording signal)
+                {
+                    held[i] = rec;
+                    detections[i] = SignalEvents.Detect(signal, options.Run.SignalEvents);
+                    return;
+                }
+
+                AnalyzeRead(i, rec, null, options.Run, null);
+                progress?.Report(Interlocked.Increment(ref done));
+            });
+            var pairs = new List<(SignalRecording, DetectedEvents)>();
+            for (var i = 0; i < entries.Count; i++)
+            {
+                if (held[i]?.Value is SignalRecording signal && detections[i]?.Value is { } found)
+                {
+                    pairs.Add((signal, found));
+                }
+            }
+
+            var setEmbedding = options.Run with { SignalEvents = options.Run.SignalEvents with { Embedding = SignalEmbedding.FromRuns(pairs) } };
+            Parallel.For(0, entries.Count, parallel, i =>
+            {
+                if (held[i] is { } rec)
+                {
+                    held[i] = null;
+                    AnalyzeRead(i, rec, null, setEmbedding, detections[i]);
+                    detections[i] = null;
+                    progress?.Report(Interlocked.Increment(ref done));
+                }
+            });
+        }
 
         // Positions that do not go round on their own (a rotor at rest) are read on the orbit that the turning runs
         // of the same set trace: the best-fitting one.

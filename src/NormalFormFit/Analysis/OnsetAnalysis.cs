@@ -221,7 +221,12 @@ public static class OnsetAnalysis
         var turning = runs.Where(r => r.IsTurning).ToList();
         var speed = OnsetKindDecision.MinimumSpeed(fromA, turning.Select(r => r.Param).ToList(), turning.Count(r => r.Bottleneck is not null),
             periodsOnly: turning.Count > 0 && turning.All(r => r.Flags.Contains(RunFlag.PeriodsOnly)));
-        return OnsetKindDecision.Decide(scaling, PeriodLaws.Weigh(periodPoints), speed);
+        var verdict = OnsetKindDecision.Decide(scaling, PeriodLaws.Weigh(periodPoints), speed);
+
+        // Words only: where the decision is left open, say so when the periods show a finite rate at onset.
+        return verdict.Kind == OnsetKind.Undetermined && FiniteRateAtOnset.Evidence(runs) is { } finite
+            ? verdict with { Evidence = verdict.Evidence + finite }
+            : verdict;
     }
 
     /// <summary>

@@ -21,7 +21,15 @@ public static class RecordingAnalyzer
     /// <paramref name="sharedOrbit"/> when one is given (a run at rest among runs that turn). Null with errors when the
     /// positions trace no orbit or a phase column does not behave like a phase (<see cref="PhaseChecks.NotAPhase"/>).
     /// </summary>
-    public static Loaded<RunResult> Analyze(RunRecording recording, double param, string file, string? label, RunOptions? options, IReadOnlyList<Diagnostic> readDiagnostics, Ellipse? sharedOrbit)
+    public static Loaded<RunResult> Analyze(RunRecording recording, double param, string file, string? label, RunOptions? options, IReadOnlyList<Diagnostic> readDiagnostics, Ellipse? sharedOrbit) =>
+        Analyze(recording, param, file, label, options, readDiagnostics, sharedOrbit, null);
+
+    /// <summary>
+    /// As above, with the events of a single signal already detected (<paramref name="detected"/>, from
+    /// <see cref="SignalEvents.Detect"/> with the same options; null: detected here), so that a set can choose its
+    /// embedding from its runs' events (<see cref="SignalEmbedding.FromRuns"/>) without detecting them twice.
+    /// </summary>
+    public static Loaded<RunResult> Analyze(RunRecording recording, double param, string file, string? label, RunOptions? options, IReadOnlyList<Diagnostic> readDiagnostics, Ellipse? sharedOrbit, Loaded<DetectedEvents>? detected)
     {
         ArgumentNullException.ThrowIfNull(recording);
         ArgumentNullException.ThrowIfNull(readDiagnostics);
@@ -31,7 +39,7 @@ public static class RecordingAnalyzer
             case EventRecording events:
                 return new Loaded<RunResult>(EventRunAnalyzer.Analyze(events, param, file, label, pre) with { Dropped = events.Dropped }, []);
             case SignalRecording signal:
-                return FromSignal(signal, param, file, label, options, pre);
+                return FromSignal(signal, param, file, label, options, pre, detected);
             case PositionRecording positions:
                 var (phase, orbit, orbitDiags) = OrbitPhase.FromPositions(positions, sharedOrbit);
                 pre.AddRange(orbitDiags.Select(d => d with { File = file }));
@@ -60,9 +68,9 @@ public static class RecordingAnalyzer
     }
 
     /// <summary>Events detected in the signal (<see cref="SignalEvents"/>), then periods as for event times.</summary>
-    private static Loaded<RunResult> FromSignal(SignalRecording signal, double param, string file, string? label, RunOptions? options, List<Diagnostic> pre)
+    private static Loaded<RunResult> FromSignal(SignalRecording signal, double param, string file, string? label, RunOptions? options, List<Diagnostic> pre, Loaded<DetectedEvents>? given)
     {
-        var detected = SignalEvents.Detect(signal, (options ?? RunOptions.Default).SignalEvents);
+        var detected = given ?? SignalEvents.Detect(signal, (options ?? RunOptions.Default).SignalEvents);
         if (detected.Value is not { } found)
         {
             return new Loaded<RunResult>(null, [.. pre, .. detected.Diagnostics.Select(d => d with { File = file })]);
@@ -81,7 +89,7 @@ public static class RecordingAnalyzer
                 file));
         // A protophase from the delay-embedded orbit gives the bottleneck; without one the run keeps its periods only.
         var (phase, orbit, orbitDiags) = (options ?? RunOptions.Default).SignalEvents.Protophase
-            ? SignalPhase.FromSignal(signal, found)
+            ? SignalPhase.FromSignal(signal, found, (options ?? RunOptions.Default).SignalEvents.Embedding)
             : (null, null, []);
         pre.AddRange(orbitDiags.Select(d => d with { File = file }));
         if (phase is not null && orbit is not null)
@@ -92,12 +100,21 @@ public static class RecordingAnalyzer
             var fromPhase = FromPhase(phase, param, file, label, options, RecordingKind.Signal, null, pre);
             if (fromPhase.Value is { } phased)
             {
+                // The measured period is the events' (every interval, as without a protophase): cycles left out of the
+                // protophase and the segments they split it into do not cost the period route any intervals, and the
+                // period route gives the same answer with and without the protophase.
+                var byEvents = EventRunAnalyzer.Analyze(found.Events, param, file, label).Period;
+                var nan = new Estimate(double.NaN, double.NaN);
+                var period = byEvents is null ? phased.Period
+                    : phased.Period is { } p ? p with { Measured = byEvents.Measured, Revolutions = byEvents.Revolutions }
+                    : new PeriodSummary(byEvents.Measured, nan, nan, byEvents.Revolutions);
                 return new Loaded<RunResult>(phased with
                 {
                     Events = s,
                     SignalOrbit = orbit,
                     SignalOrbitView = SignalOrbitView.From(signal, phase, orbit, phased.Bottleneck?.Phase.Value ?? double.NaN, phased.Direction),
                     Dropped = signal.Dropped,
+                    Period = period,
                 }, fromPhase.Diagnostics);
             }
 

@@ -18,6 +18,9 @@ public sealed record SignalEventOptions
     /// <summary>Also reconstruct a protophase from the signal (<see cref="SignalPhase"/>) for the bottleneck route; off: periods from the events only.</summary>
     public bool Protophase { get; init; }
 
+    /// <summary>The set's embedding for the protophase (<see cref="SignalEmbedding.FromRuns"/>); null: each run's own.</summary>
+    public SignalEmbedding? Embedding { get; init; }
+
     /// <summary>Levels from the signal.</summary>
     public static SignalEventOptions Default { get; } = new();
 
@@ -127,7 +130,7 @@ public static class SignalEvents
                 signal.File));
         }
 
-        var baseline = SampleStatistics.Median(v);
+        var baseline = SampleStatistics.MedianBySelection(v.AsSpan().ToArray());
         var noise = NoiseSd(v, signal.SegmentStarts);
         noise = Math.Max(noise, 1e-9 * (max - min));
         if (Clipped(v, max, baseline, noise) is { } top)
@@ -416,30 +419,32 @@ public static class SignalEvents
     /// <summary>Robust σ of white noise from the first differences within segments: 1.4826·MAD(Δv)/√2.</summary>
     private static double NoiseSd(double[] v, int[] segmentStarts)
     {
-        var d = new List<double>(v.Length);
+        var diffs = new double[Math.Max(v.Length - 1, 0)];
+        var count = 0;
         for (var k = 0; k < segmentStarts.Length; k++)
         {
             var s = segmentStarts[k];
             var e = k + 1 < segmentStarts.Length ? segmentStarts[k + 1] : v.Length;
             for (var i = s + 1; i < e; i++)
             {
-                d.Add(v[i] - v[i - 1]);
+                diffs[count++] = v[i] - v[i - 1];
             }
         }
 
-        if (d.Count == 0)
+        if (count == 0)
         {
             return 0;
         }
 
-        var diffs = d.ToArray();
-        var m = SampleStatistics.Median(diffs);
-        for (var i = 0; i < diffs.Length; i++)
+        // Medians by selection (the order of the differences does not matter here).
+        var used = diffs.AsSpan(0, count);
+        var m = SampleStatistics.MedianBySelection(used);
+        for (var i = 0; i < count; i++)
         {
-            diffs[i] = Math.Abs(diffs[i] - m);
+            used[i] = Math.Abs(used[i] - m);
         }
 
-        return 1.4826 * SampleStatistics.Median(diffs) / Math.Sqrt(2);
+        return 1.4826 * SampleStatistics.MedianBySelection(used) / Math.Sqrt(2);
     }
 
 }

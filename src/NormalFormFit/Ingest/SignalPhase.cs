@@ -21,7 +21,53 @@ public sealed record SignalOrbit(
     double BackwardFraction,
     int Cycles,
     int CyclesLeftOut,
-    IReadOnlyList<(double Start, double End)> LeftOutTimes);
+    IReadOnlyList<(double Start, double End)> LeftOutTimes)
+{
+    /// <summary>Length of the mean orbit in the delay plane (the signal's unit): one turn of the protophase, 2π, is this much arc length (NaN when the angle was used).</summary>
+    public double LoopLength { get; init; } = double.NaN;
+}
+
+/// <summary>
+/// The embedding shared by every single-signal run of a set, chosen once from the firing runs together: delay
+/// <see cref="SignalPhase.DelayFraction"/> × <see cref="Width"/>. One delay for all runs makes the delay plane the same
+/// image of the state space in every run, so that the minimum speeds a are in comparable units across runs; a delay
+/// per run changes the image, and with it a, as the spikes change shape with the parameter.
+/// </summary>
+/// <param name="Width">The median over the firing runs (at least <see cref="SignalPhase.MinimumEvents"/> events) of each run's median event width (time from an event until the signal is back below threshold − hysteresis), in the set's time unit.</param>
+/// <param name="Runs">Firing runs it was chosen from.</param>
+public sealed record SignalEmbedding(double Width, int Runs)
+{
+    /// <summary>
+    /// The set's embedding from its single-signal runs and their events: the median of the runs' median widths (each
+    /// firing run counts once, however long it is); null when no run has <see cref="SignalPhase.MinimumEvents"/> events.
+    /// </summary>
+    public static SignalEmbedding? FromRuns(IEnumerable<(SignalRecording Signal, DetectedEvents Detected)> runs)
+    {
+        ArgumentNullException.ThrowIfNull(runs);
+        var widths = new List<double>();
+        foreach (var (signal, detected) in runs)
+        {
+            if (detected.Events.Times.Length >= SignalPhase.MinimumEvents)
+            {
+                var w = SignalPhase.MedianWidth(signal.Time, signal.Values, detected.Events.Times, detected.Summary.Threshold - detected.Summary.Hysteresis);
+                if (double.IsFinite(w) && w > 0)
+                {
+                    widths.Add(w);
+                }
+            }
+        }
+
+        if (widths.Count == 0)
+        {
+            return null;
+        }
+
+        widths.Sort();
+        var half = widths.Count / 2;
+        var median = widths.Count % 2 == 1 ? widths[half] : 0.5 * (widths[half - 1] + widths[half]);
+        return new SignalEmbedding(median, widths.Count);
+    }
+}
 
 /// <summary>
 /// One signal → a protophase: a planar orbit by time-delay embedding, an interior point about which the orbit is
@@ -37,10 +83,15 @@ public sealed record SignalOrbit(
 /// out-and-back needles about which no point sees a monotone angle (measured 2026-12-03, every cycle of the sweep 0.5
 /// μA/cm² above onset ran backwards by 1.5–2.6 rad). A small τ in samples is a fixed time on uniform sampling; gaps are
 /// never embedded across.</para>
-/// <para><b>Centre.</b> On the orbit coarse-grained to at most 20 000 block means, the point of a 25 × 25 grid over the
-/// orbit's box (then a 9 × 9 grid over the best cell and its neighbours) with the least backward angle per angle
-/// travelled, among the points about which the orbit winds once per event (within 25 %); among points within 1 % of
-/// the least, the one farthest from the orbit.</para>
+/// <para><b>Centre.</b> The point of a 25 × 25 grid over the orbit's box (then a 9 × 9 grid over the best cell and its
+/// neighbours) with the least backward angle per angle travelled, among the points about which the orbit winds once per
+/// event (within 25 %); among points within 0.05 of the least, the one that spreads the orbit's time most evenly over the
+/// angle. Searched on the whole orbit as at most 20 000 block means for records up to <see cref="LongRecord"/> points; on
+/// longer records on the orbit up to its <see cref="CentreCycles"/>-th event, thinned to points
+/// <see cref="CentreSpacing"/> × the box diagonal apart (each weighted by the time it stands for), so that the search
+/// costs the same however long the record (distance, not time blocks: time blocks would average the spike away).</para>
+/// <para><b>One delay per set.</b> In a set the delay is chosen once from all firing runs (<see cref="SignalEmbedding"/>),
+/// so that every run's orbit is the same image of the state space and the minimum speeds compare across runs.</para>
 /// <para><b>Protophase.</b> Arc length along the mean orbit (<see cref="TemplateBins"/> bins of the angle about the
 /// centre, each sample projected onto the nearest segment), scaled to 2π per turn. Why not the angle itself: seen from
 /// any point inside a spike-shaped loop the long slow stretch before a spike lies almost along a ray, so the angle hardly
@@ -53,7 +104,7 @@ public sealed record SignalOrbit(
 /// half a turn). A cycle that fails is flagged (<c>signal-cycles-left-out</c>) and its samples are left out, never
 /// fitted; the record is split there. Samples before the first and after the last event are checked for backward runs
 /// only. Onset and periods do not depend on the choice of protophase; a and b are in its units.</para>
-/// Cost O(n) (the grid search runs on the coarse-grained orbit; the projection on a window of the mean orbit).
+/// Cost O(n) (the grid search runs on a bounded number of points; the projection on a window of the mean orbit).
 /// </remarks>
 public static class SignalPhase
 {
@@ -75,16 +126,30 @@ public static class SignalPhase
     /// <summary>Mean-orbit segments either side of a sample's own angle bin searched for its projection.</summary>
     public const int ProjectionWindow = 12;
 
-    private const int CoarsePoints = 20000;
+    /// <summary>Cycles (events) of the stretch on which the centre is searched: enough to average the noise, few enough to be cheap.</summary>
+    public const int CentreCycles = 30;
+
+    /// <summary>Spacing of the points of the orbit on which the centre is searched, as a fraction of the diagonal of the orbit's box (points closer than this to the last one kept are merged into it, with their time).</summary>
+    public const double CentreSpacing = 0.012;
+
     private const int Grid = 25;
     private const int FineGrid = 9;
 
     /// <summary>
-    /// The protophase of <paramref name="signal"/> cycle by cycle between the events in <paramref name="detected"/>. Null
-    /// (with a warning <c>no-signal-orbit</c>) when there are fewer than <see cref="MinimumEvents"/> events or no centre
-    /// about which the orbit winds once per event: the run then keeps its periods only.
+    /// The protophase of <paramref name="signal"/> cycle by cycle between the events in <paramref name="detected"/>,
+    /// with the delay chosen from this run's own events. Null (with a warning <c>no-signal-orbit</c>) when there are
+    /// fewer than <see cref="MinimumEvents"/> events or no centre about which the orbit winds once per event: the run then
+    /// keeps its periods only.
     /// </summary>
-    public static (PhaseRecording? Phase, SignalOrbit? Orbit, IReadOnlyList<Diagnostic> Diagnostics) FromSignal(SignalRecording signal, DetectedEvents detected)
+    public static (PhaseRecording? Phase, SignalOrbit? Orbit, IReadOnlyList<Diagnostic> Diagnostics) FromSignal(SignalRecording signal, DetectedEvents detected) =>
+        FromSignal(signal, detected, null);
+
+    /// <summary>
+    /// As <see cref="FromSignal(SignalRecording, DetectedEvents)"/>, with the delay and the thinning of
+    /// <paramref name="embedding"/> (the set's, <see cref="SignalEmbedding.FromRuns"/>) when one is given, so that every
+    /// run of a set is embedded alike; null: from this run's own events.
+    /// </summary>
+    public static (PhaseRecording? Phase, SignalOrbit? Orbit, IReadOnlyList<Diagnostic> Diagnostics) FromSignal(SignalRecording signal, DetectedEvents detected, SignalEmbedding? embedding)
     {
         ArgumentNullException.ThrowIfNull(signal);
         ArgumentNullException.ThrowIfNull(detected);
@@ -99,49 +164,36 @@ public static class SignalPhase
         var v = signal.Values;
         var t = signal.Time;
         var n = v.Length;
-        var segOf = SegmentIndex(n, signal.SegmentStarts);
         var step = Trajectory.TypicalStep(t);
-        var width = MedianWidth(t, v, events.Times, detected.Summary.Threshold - detected.Summary.Hysteresis);
+        var width = embedding?.Width ?? MedianWidth(t, v, events.Times, detected.Summary.Threshold - detected.Summary.Hysteresis);
         var delay = (int)Math.Clamp(Math.Round(DelayFraction * width / step), 1, Math.Max(1, n / 4));
-        const string rule = "a quarter of the events' median width";
+        var rule = embedding is null
+            ? "a quarter of this run's events' median width"
+            : string.Create(ic, $"a quarter of the events' median width, {embedding.Width:G4}, over the set's {embedding.Runs} firing run(s)");
 
-        // Embedded samples: i with i − delay in the same segment.
-        var idx = new List<int>(n);
-        for (var i = delay; i < n; i++)
-        {
-            if (segOf[i] == segOf[i - delay])
-            {
-                idx.Add(i);
-            }
-        }
-
-        var m = idx.Count;
+        var orbitPoints = Embed(v, t, SegmentIndex(n, signal.SegmentStarts), delay);
+        var (x, y, time, seg) = orbitPoints;
+        var m = x.Length;
         if (m < 16)
         {
             diags.Add(NoOrbit(signal, "too few samples remain once delayed"));
             return (null, null, diags);
         }
 
-        // Winding expected: one turn per event inside the embedded stretch.
-        var span0 = t[idx[0]];
-        var span1 = t[idx[^1]];
-        var expected = events.Times.Count(e => e >= span0 && e <= span1);
-        var (cx, cy) = CoarseOrbit(v, idx, delay, segOf);
-        var centre = ChooseCentre(cx, cy, Math.Max(expected, 1));
+        var centre = ChooseCentre(orbitPoints, events.Times);
         if (centre is not { } c)
         {
             diags.Add(NoOrbit(signal, string.Create(ic, $"no point inside the delay-embedded orbit (delay {delay * step:G3}) has the orbit wind round it once per event")));
             return (null, null, diags);
         }
 
-        // Protophase, unwrapped within segments, oriented to increase.
+        // Angle about the centre, unwrapped within segments, oriented to increase.
         var theta = new double[m];
         var net = 0.0;
         for (var k = 0; k < m; k++)
         {
-            var i = idx[k];
-            theta[k] = Math.Atan2(v[i - delay] - c.Y, v[i] - c.X);
-            if (k > 0 && segOf[i] == segOf[idx[k - 1]])
+            theta[k] = Math.Atan2(y[k] - c.Y, x[k] - c.X);
+            if (k > 0 && seg[k] == seg[k - 1])
             {
                 var d = theta[k] - theta[k - 1];
                 net += d - (2 * Math.PI * Math.Round(d / (2 * Math.PI)));
@@ -152,8 +204,7 @@ public static class SignalPhase
         var unwrapped = new double[m];
         for (var k = 0; k < m; k++)
         {
-            var same = k > 0 && segOf[idx[k]] == segOf[idx[k - 1]];
-            if (!same)
+            if (k == 0 || seg[k] != seg[k - 1])
             {
                 unwrapped[k] = sense * theta[k];
                 continue;
@@ -164,7 +215,8 @@ public static class SignalPhase
         }
 
         // The angle only orders the orbit; the protophase is arc length along the mean orbit (see remarks).
-        unwrapped = ArcLengthPhase(v, idx, delay, segOf, unwrapped);
+        var (arc, loopLength) = ArcLengthPhase(x, y, seg, unwrapped);
+        unwrapped = arc;
 
         // Cycles between events: monotone, one turn.
         var keep = new bool[m];
@@ -175,21 +227,21 @@ public static class SignalPhase
         var ev = events.Times;
         var k0 = 0;
         var e0 = 0;
-        while (e0 < ev.Length && ev[e0] < t[idx[0]])
+        while (e0 < ev.Length && ev[e0] < time[0])
         {
             e0++;
         }
 
         // Stretch before the first event (partial: backward check only).
         var firstEnd = k0;
-        while (firstEnd < m && (e0 >= ev.Length || t[idx[firstEnd]] < ev[e0]))
+        while (firstEnd < m && (e0 >= ev.Length || time[firstEnd] < ev[e0]))
         {
             firstEnd++;
         }
 
-        if (Backward(unwrapped, idx, segOf, k0, firstEnd) > BackwardTolerance)
+        if (Backward(unwrapped, seg, k0, firstEnd) > BackwardTolerance)
         {
-            Drop(keep, k0, firstEnd, t, idx, leftOut);
+            Drop(keep, k0, firstEnd, time, leftOut);
         }
 
         k0 = firstEnd;
@@ -197,7 +249,7 @@ public static class SignalPhase
         {
             var last = e + 1 >= ev.Length;
             var kEnd = k0;
-            while (kEnd < m && (last || t[idx[kEnd]] < ev[e + 1]))
+            while (kEnd < m && (last || time[kEnd] < ev[e + 1]))
             {
                 kEnd++;
             }
@@ -207,8 +259,8 @@ public static class SignalPhase
                 continue;
             }
 
-            var oneSegment = segOf[idx[k0]] == segOf[idx[kEnd - 1]];
-            var back = Backward(unwrapped, idx, segOf, k0, kEnd);
+            var oneSegment = seg[k0] == seg[kEnd - 1];
+            var back = Backward(unwrapped, seg, k0, kEnd);
             var whole = !last && oneSegment && kEnd < m;
             var ok = back <= BackwardTolerance;
             if (whole)
@@ -224,14 +276,14 @@ public static class SignalPhase
 
             if (!ok)
             {
-                Drop(keep, k0, kEnd, t, idx, leftOut);
+                Drop(keep, k0, kEnd, time, leftOut);
             }
 
             k0 = kEnd;
         }
 
         // Kept samples, a new segment wherever a stretch was left out or the signal had a gap.
-        var time = new List<double>(m);
+        var keptTime = new List<double>(m);
         var phase = new List<double>(m);
         var starts = new List<int>();
         var prevKept = -2;
@@ -242,17 +294,17 @@ public static class SignalPhase
                 continue;
             }
 
-            if (prevKept != k - 1 || segOf[idx[k]] != segOf[idx[prevKept]])
+            if (prevKept != k - 1 || seg[k] != seg[prevKept])
             {
-                starts.Add(time.Count);
+                starts.Add(keptTime.Count);
             }
 
-            time.Add(t[idx[k]]);
+            keptTime.Add(time[k]);
             phase.Add(unwrapped[k]);
             prevKept = k;
         }
 
-        if (time.Count < 16)
+        if (keptTime.Count < 16)
         {
             diags.Add(NoOrbit(signal, "every cycle's protophase runs backwards"));
             return (null, null, diags);
@@ -265,8 +317,11 @@ public static class SignalPhase
                 signal.File));
         }
 
-        var orbit = new SignalOrbit(delay, delay * step, rule, c.X, c.Y, c.Backward, cycles, bad, leftOut);
-        var rec = new PhaseRecording(signal.File, [.. time], [.. phase], [.. starts])
+        var orbit = new SignalOrbit(delay, delay * step, rule, c.X, c.Y, c.Backward, cycles, bad, leftOut)
+        {
+            LoopLength = loopLength,
+        };
+        var rec = new PhaseRecording(signal.File, [.. keptTime], [.. phase], [.. starts])
         {
             Unwrapped = true,
             TimeUnit = signal.TimeUnit,
@@ -276,16 +331,58 @@ public static class SignalPhase
         return (rec, orbit, diags);
     }
 
+    /// <summary>The embedded orbit (s(tᵢ), s(tᵢ₋d)): coordinates, time and segment of each point.</summary>
+    private readonly record struct EmbeddedOrbit(double[] X, double[] Y, double[] Time, int[] Segment);
+
+    /// <summary>
+    /// The delay coordinates of every sample i with i and i − <paramref name="delay"/> in one segment (never across a
+    /// gap). Not thinned: block means over as little as two samples made the bottleneck fits of the sweeps nearest onset
+    /// worse (measured on the Morris–Lecar sweeps of <c>NormalFormFit.Bench signal-onsets</c>: a single run's a off by
+    /// a factor 10–25, once the onset 20–30 distances to the nearest sweep off). O(n).
+    /// </summary>
+    private static EmbeddedOrbit Embed(double[] v, double[] t, int[] segOf, int delay)
+    {
+        var n = v.Length;
+        var m = 0;
+        for (var i = delay; i < n; i++)
+        {
+            if (segOf[i] == segOf[i - delay])
+            {
+                m++;
+            }
+        }
+
+        var xs = new double[m];
+        var ys = new double[m];
+        var ts = new double[m];
+        var ss = new int[m];
+        var k = 0;
+        for (var i = delay; i < n; i++)
+        {
+            if (segOf[i] == segOf[i - delay])
+            {
+                xs[k] = v[i];
+                ys[k] = v[i - delay];
+                ts[k] = t[i];
+                ss[k] = segOf[i];
+                k++;
+            }
+        }
+
+        return new EmbeddedOrbit(xs, ys, ts, ss);
+    }
+
     /// <summary>
     /// Protophase as arc length along the mean orbit: the orbit's mean point in each of <see cref="TemplateBins"/> bins
     /// of the angle about the centre gives a closed polyline (the mean orbit); each sample is projected onto the nearest
     /// of its segments within <see cref="ProjectionWindow"/> bins of its own, and the protophase is 2π × the arc length
     /// from the polyline's start to that point over the polyline's length, unwrapped with the angle's turn count.
-    /// Projection, not integration along the noisy samples, so noise does not accumulate. O(n · window).
+    /// Projection, not integration along the noisy samples, so noise does not accumulate. O(n · window). Also returns
+    /// the mean orbit's length (the signal's unit; NaN when the angle is used instead).
     /// </summary>
-    private static double[] ArcLengthPhase(double[] v, List<int> idx, int delay, int[] segOf, double[] angle)
+    private static (double[] Phase, double Length) ArcLengthPhase(double[] x, double[] y, int[] seg, double[] angle)
     {
-        var m = idx.Count;
+        var m = x.Length;
         var sx = new double[TemplateBins];
         var sy = new double[TemplateBins];
         var count = new int[TemplateBins];
@@ -295,8 +392,8 @@ public static class SignalPhase
             var a = angle[k] - (2 * Math.PI * Math.Floor(angle[k] / (2 * Math.PI)));
             var b = Math.Clamp((int)(a / (2 * Math.PI) * TemplateBins), 0, TemplateBins - 1);
             bin[k] = b;
-            sx[b] += v[idx[k]];
-            sy[b] += v[idx[k] - delay];
+            sx[b] += x[k];
+            sy[b] += y[k];
             count[b]++;
         }
 
@@ -328,7 +425,7 @@ public static class SignalPhase
         var p = tx.Count;
         if (p < 8)
         {
-            return angle;
+            return (angle, double.NaN);
         }
 
         var cum = new double[p + 1];
@@ -341,33 +438,61 @@ public static class SignalPhase
         var length = cum[p];
         if (!(length > 0))
         {
-            return angle;
+            return (angle, double.NaN);
+        }
+
+        // The polyline unrolled over ProjectionWindow segments either side (no modulo in the loop below): segment q runs
+        // from point q to point q + 1, point q being template point q − W (mod p) at arc length cum + whole turns.
+        const int W = ProjectionWindow;
+        var ext = p + (2 * W) + 2;
+        var px = new double[ext];
+        var py = new double[ext];
+        var pc = new double[ext];
+        for (var q = 0; q < ext; q++)
+        {
+            var j = q - W;
+            var turns = (int)Math.Floor(j / (double)p);
+            var jj = j - (turns * p);
+            px[q] = tx[jj];
+            py[q] = ty[jj];
+            pc[q] = cum[jj] + (turns * length);
+        }
+
+        var ux = new double[ext - 1];
+        var uy = new double[ext - 1];
+        var inv = new double[ext - 1];
+        for (var q = 0; q < ext - 1; q++)
+        {
+            ux[q] = px[q + 1] - px[q];
+            uy[q] = py[q + 1] - py[q];
+            var len2 = (ux[q] * ux[q]) + (uy[q] * uy[q]);
+            inv[q] = len2 > 0 ? 1 / len2 : 0;
         }
 
         var result = new double[m];
+        var scale = 2 * Math.PI / length;
         for (var k = 0; k < m; k++)
         {
-            double x = v[idx[k]], y = v[idx[k] - delay];
+            double xk = x[k], yk = y[k];
             var best = double.PositiveInfinity;
             var along = 0.0;
-            for (var w = -ProjectionWindow; w <= ProjectionWindow; w++)
+            var q0 = nearest[bin[k]];
+            for (var q = q0; q <= q0 + (2 * W); q++)
             {
-                var j = (((nearest[bin[k]] + w) % p) + p) % p;
-                var next = (j + 1) % p;
-                double ux = tx[next] - tx[j], uy = ty[next] - ty[j];
-                var len2 = (ux * ux) + (uy * uy);
-                var u = len2 > 0 ? Math.Clamp((((x - tx[j]) * ux) + ((y - ty[j]) * uy)) / len2, 0, 1) : 0;
-                double dx = tx[j] + (u * ux) - x, dy = ty[j] + (u * uy) - y;
+                double dx0 = xk - px[q], dy0 = yk - py[q];
+                var u = ((dx0 * ux[q]) + (dy0 * uy[q])) * inv[q];
+                u = u < 0 ? 0 : u > 1 ? 1 : u;
+                double dx = (u * ux[q]) - dx0, dy = (u * uy[q]) - dy0;
                 var d2 = (dx * dx) + (dy * dy);
                 if (d2 < best)
                 {
                     best = d2;
-                    along = cum[j] + (u * (cum[j + 1] - cum[j]));
+                    along = pc[q] + (u * (pc[q + 1] - pc[q]));
                 }
             }
 
-            var psi = 2 * Math.PI * along / length;
-            if (k == 0 || segOf[idx[k]] != segOf[idx[k - 1]])
+            var psi = scale * along;
+            if (k == 0 || seg[k] != seg[k - 1])
             {
                 result[k] = psi + (2 * Math.PI * Math.Round((angle[k] - psi) / (2 * Math.PI)));
             }
@@ -378,7 +503,7 @@ public static class SignalPhase
             }
         }
 
-        return result;
+        return (result, length);
     }
 
     /// <summary>Median time from each event until the signal falls below <paramref name="rearm"/> (the detector's threshold − hysteresis): the events' width.</summary>
@@ -437,19 +562,111 @@ public static class SignalPhase
 
     private readonly record struct Centre(double X, double Y, double Backward, double Spread);
 
-    /// <summary>Block means of the embedded orbit (blocks within one segment), at most <see cref="CoarsePoints"/> points.</summary>
-    private static (double[] X, double[] Y) CoarseOrbit(double[] v, List<int> idx, int delay, int[] segOf)
+    /// <summary>
+    /// The points on which the centre is searched: the stretch of the orbit up to its <see cref="CentreCycles"/>-th
+    /// event (all of it when shorter), points closer than <see cref="CentreSpacing"/> × the diagonal of the orbit's box to
+    /// the last one kept merged into it (the merged time is its weight), NaN between segments; and the events inside.
+    /// </summary>
+    private static (double[] X, double[] Y, double[] Weight, int Events) CentrePoints(EmbeddedOrbit orbit, double[] events)
     {
-        var block = Math.Max(1, (int)Math.Ceiling(idx.Count / (double)CoarsePoints));
+        var (x, y, time, seg) = orbit;
+        var m = x.Length;
+        if (m <= LongRecord)
+        {
+            return CoarseOrbit(orbit, events);
+        }
+
+        var first = 0;
+        while (first < events.Length && events[first] < time[0])
+        {
+            first++;
+        }
+
+        var lastEvent = Math.Min(events.Length - 1, first + CentreCycles);
+        var end = m;
+        if (lastEvent >= first && lastEvent < events.Length && first + CentreCycles < events.Length)
+        {
+            end = 0;
+            while (end < m && time[end] <= events[lastEvent])
+            {
+                end++;
+            }
+        }
+
+        double x0 = double.PositiveInfinity, x1 = double.NegativeInfinity, y0 = double.PositiveInfinity, y1 = double.NegativeInfinity;
+        for (var k = 0; k < end; k++)
+        {
+            x0 = Math.Min(x0, x[k]);
+            x1 = Math.Max(x1, x[k]);
+            y0 = Math.Min(y0, y[k]);
+            y1 = Math.Max(y1, y[k]);
+        }
+
+        var spacing = CentreSpacing * Math.Sqrt(((x1 - x0) * (x1 - x0)) + ((y1 - y0) * (y1 - y0)));
+        var s2 = spacing * spacing;
+        var xs = new List<double>();
+        var ys = new List<double>();
+        var ws = new List<double>();
+        double lx = double.NaN, ly = double.NaN;
+        for (var k = 0; k < end; k++)
+        {
+            var dt = k > 0 && seg[k] == seg[k - 1] ? time[k] - time[k - 1] : 0;
+            if (k > 0 && seg[k] != seg[k - 1])
+            {
+                xs.Add(double.NaN);
+                ys.Add(double.NaN);
+                ws.Add(0);
+                lx = double.NaN;
+            }
+
+            var dx = x[k] - lx;
+            var dy = y[k] - ly;
+            if (double.IsNaN(lx) || (dx * dx) + (dy * dy) >= s2)
+            {
+                xs.Add(x[k]);
+                ys.Add(y[k]);
+                ws.Add(dt);
+                lx = x[k];
+                ly = y[k];
+            }
+            else
+            {
+                ws[^1] += dt;
+            }
+        }
+
+        var inside = 0;
+        var t0 = time[0];
+        var t1 = time[Math.Max(end - 1, 0)];
+        foreach (var e in events)
+        {
+            if (e >= t0 && e <= t1)
+            {
+                inside++;
+            }
+        }
+
+        return ([.. xs], [.. ys], [.. ws], inside);
+    }
+
+    /// <summary>Records up to this many points search the centre on the whole orbit, block means of at most <see cref="CoarsePoints"/> points; longer ones on the first <see cref="CentreCycles"/> cycles thinned by distance (the cost of the search stays bounded).</summary>
+    public const int LongRecord = 200_000;
+
+    private const int CoarsePoints = 20000;
+
+    /// <summary>The whole orbit as block means (blocks within one segment) of at most <see cref="CoarsePoints"/> points, each of weight one, NaN between segments; and the events inside.</summary>
+    private static (double[] X, double[] Y, double[] Weight, int Events) CoarseOrbit(EmbeddedOrbit orbit, double[] events)
+    {
+        var (x, y, time, seg) = orbit;
+        var block = Math.Max(1, (int)Math.Ceiling(x.Length / (double)CoarsePoints));
         var xs = new List<double>(CoarsePoints + 8);
         var ys = new List<double>(CoarsePoints + 8);
         double sx = 0, sy = 0;
         var count = 0;
-        var seg = -1;
-        for (var k = 0; k < idx.Count; k++)
+        var current = -1;
+        for (var k = 0; k < x.Length; k++)
         {
-            var i = idx[k];
-            if (segOf[i] != seg && count > 0)
+            if (seg[k] != current && count > 0)
             {
                 xs.Add(sx / count);
                 ys.Add(sy / count);
@@ -459,9 +676,9 @@ public static class SignalPhase
                 count = 0;
             }
 
-            seg = segOf[i];
-            sx += v[i];
-            sy += v[i - delay];
+            current = seg[k];
+            sx += x[k];
+            sy += y[k];
             count++;
             if (count == block)
             {
@@ -478,17 +695,31 @@ public static class SignalPhase
             ys.Add(sy / count);
         }
 
-        return ([.. xs], [.. ys]);
+        var weights = new double[xs.Count];
+        Array.Fill(weights, 1.0);
+        var inside = 0;
+        foreach (var e in events)
+        {
+            if (e >= time[0] && e <= time[^1])
+            {
+                inside++;
+            }
+        }
+
+        return ([.. xs], [.. ys], weights, inside);
     }
 
     /// <summary>
-    /// The grid point about which the orbit winds once per event, with a backward fraction within
-    /// <see cref="NearlyAsGood"/> of the least, that spreads the orbit's time most evenly over the angle (largest
+    /// The grid point about which the orbit (<see cref="CentrePoints"/>) winds once per event, with a backward fraction
+    /// within <see cref="NearlyAsGood"/> of the least, that spreads the orbit's time most evenly over the angle (largest
     /// entropy of the time-weighted histogram of the angle in <see cref="SpreadBins"/> bins): a point that sees the slow
-    /// stretch side-on, not along a ray.
+    /// stretch side-on, not along a ray. A 25 × 25 grid over the orbit's box, then a 9 × 9 grid over the best cell and its
+    /// neighbours.
     /// </summary>
-    private static Centre? ChooseCentre(double[] x, double[] y, int expectedTurns)
+    private static Centre? ChooseCentre(EmbeddedOrbit orbit, double[] events)
     {
+        var (x, y, w, inside) = CentrePoints(orbit, events);
+        var expectedTurns = Math.Max(inside, 1);
         double x0 = double.PositiveInfinity, x1 = double.NegativeInfinity, y0 = double.PositiveInfinity, y1 = double.NegativeInfinity;
         for (var k = 0; k < x.Length; k++)
         {
@@ -515,7 +746,7 @@ public static class SignalPhase
         {
             for (var b = 1; b <= Grid; b++)
             {
-                if (Score(x, y, x0 + (a * hx), y0 + (b * hy), expectedTurns) is { } c)
+                if (Score(x, y, w, x0 + (a * hx), y0 + (b * hy), expectedTurns) is { } c)
                 {
                     candidates.Add(c);
                 }
@@ -531,7 +762,7 @@ public static class SignalPhase
         {
             for (var b = -FineGrid / 2; b <= FineGrid / 2; b++)
             {
-                if (Score(x, y, coarse.X + (a * hx / (FineGrid / 2)), coarse.Y + (b * hy / (FineGrid / 2)), expectedTurns) is { } c)
+                if (Score(x, y, w, coarse.X + (a * hx / (FineGrid / 2)), coarse.Y + (b * hy / (FineGrid / 2)), expectedTurns) is { } c)
                 {
                     candidates.Add(c);
                 }
@@ -558,12 +789,12 @@ public static class SignalPhase
     /// <summary>Angle bins of the time-weighted histogram whose entropy measures how evenly a centre spreads the orbit's time.</summary>
     private const int SpreadBins = 64;
 
-    private static Centre? Score(double[] x, double[] y, double cx, double cy, int expectedTurns)
+    private static Centre? Score(double[] x, double[] y, double[] weight, double cx, double cy, int expectedTurns)
     {
         double total = 0, forward = 0, backward = 0;
         var prev = double.NaN;
-        var histogram = new int[SpreadBins];
-        var points = 0;
+        Span<double> histogram = stackalloc double[SpreadBins];
+        var mass = 0.0;
         for (var k = 0; k < x.Length; k++)
         {
             if (double.IsNaN(x[k]))
@@ -573,8 +804,8 @@ public static class SignalPhase
             }
 
             var a = Math.Atan2(y[k] - cy, x[k] - cx);
-            histogram[Math.Clamp((int)((a + Math.PI) / (2 * Math.PI) * SpreadBins), 0, SpreadBins - 1)]++;
-            points++;
+            histogram[Math.Clamp((int)((a + Math.PI) / (2 * Math.PI) * SpreadBins), 0, SpreadBins - 1)] += weight[k];
+            mass += weight[k];
             if (!double.IsNaN(prev))
             {
                 var d = a - prev;
@@ -594,7 +825,7 @@ public static class SignalPhase
         }
 
         var turns = Math.Abs(total) / (2 * Math.PI);
-        if (Math.Abs(turns - expectedTurns) > (0.25 * expectedTurns) + 1)
+        if (Math.Abs(turns - expectedTurns) > (0.25 * expectedTurns) + 1 || !(mass > 0))
         {
             return null;
         }
@@ -604,7 +835,7 @@ public static class SignalPhase
         {
             if (h > 0)
             {
-                var p = h / (double)points;
+                var p = h / mass;
                 entropy -= p * Math.Log(p);
             }
         }
@@ -613,14 +844,14 @@ public static class SignalPhase
         return new Centre(cx, cy, against / (forward + backward), entropy);
     }
 
-    /// <summary>Largest fall of the protophase below its running maximum over samples [from, to) (within segments).</summary>
-    private static double Backward(double[] phase, List<int> idx, int[] segOf, int from, int to)
+    /// <summary>Largest fall of the protophase below its running maximum over points [from, to) (within segments).</summary>
+    private static double Backward(double[] phase, int[] seg, int from, int to)
     {
         var worst = 0.0;
         var max = double.NegativeInfinity;
         for (var k = from; k < to; k++)
         {
-            if (k > from && segOf[idx[k]] != segOf[idx[k - 1]])
+            if (k > from && seg[k] != seg[k - 1])
             {
                 max = double.NegativeInfinity;
             }
@@ -632,7 +863,7 @@ public static class SignalPhase
         return worst;
     }
 
-    private static void Drop(bool[] keep, int from, int to, double[] t, List<int> idx, List<(double, double)> leftOut)
+    private static void Drop(bool[] keep, int from, int to, double[] time, List<(double, double)> leftOut)
     {
         if (to <= from)
         {
@@ -640,7 +871,7 @@ public static class SignalPhase
         }
 
         Array.Fill(keep, false, from, to - from);
-        leftOut.Add((t[idx[from]], t[idx[to - 1]]));
+        leftOut.Add((time[from], time[to - 1]));
     }
 
     private static Diagnostic NoOrbit(SignalRecording signal, string why) => new(Severity.Warning, "no-signal-orbit",

@@ -64,4 +64,94 @@ internal static class SampleStatistics
         var m = xs.Length / 2;
         return xs.Length % 2 == 1 ? xs[m] : 0.5 * (xs[m - 1] + xs[m]);
     }
+
+    /// <summary>
+    /// The median by selection, reordering <paramref name="xs"/> (not sorting it); NaN when empty. Hoare's FIND
+    /// (Hoare 1961, "Algorithm 65: Find", Comm. ACM 4:321) with the median of three as pivot: O(n) expected, against
+    /// O(n log n) for a sort; the same value as <see cref="MedianInPlace"/>.
+    /// </summary>
+    public static double MedianBySelection(Span<double> xs)
+    {
+        if (xs.IsEmpty)
+        {
+            return double.NaN;
+        }
+
+        var m = xs.Length / 2;
+        var upper = Select(xs, m);
+        if (xs.Length % 2 == 1)
+        {
+            return upper;
+        }
+
+        // The lower middle is the largest of the elements left of m (all ≤ xs[m] after the selection).
+        var lower = double.NegativeInfinity;
+        foreach (var x in xs[..m])
+        {
+            lower = Math.Max(lower, x);
+        }
+
+        return 0.5 * (lower + upper);
+    }
+
+    /// <summary>The k-th smallest element (0-based): afterwards xs[k] holds it, everything left of k is ≤ it and everything right ≥ it.</summary>
+    private static double Select(Span<double> xs, int k)
+    {
+        int lo = 0, hi = xs.Length - 1;
+        while (hi > lo)
+        {
+            var mid = lo + ((hi - lo) / 2);
+            if (xs[mid] < xs[lo])
+            {
+                (xs[mid], xs[lo]) = (xs[lo], xs[mid]);
+            }
+
+            if (xs[hi] < xs[lo])
+            {
+                (xs[hi], xs[lo]) = (xs[lo], xs[hi]);
+            }
+
+            if (xs[hi] < xs[mid])
+            {
+                (xs[hi], xs[mid]) = (xs[mid], xs[hi]);
+            }
+
+            var pivot = xs[mid];
+            int i = lo, j = hi;
+            while (i <= j)
+            {
+                while (xs[i] < pivot)
+                {
+                    i++;
+                }
+
+                while (pivot < xs[j])
+                {
+                    j--;
+                }
+
+                if (i <= j)
+                {
+                    (xs[i], xs[j]) = (xs[j], xs[i]);
+                    i++;
+                    j--;
+                }
+            }
+
+            if (k <= j)
+            {
+                hi = j;
+            }
+            else if (k >= i)
+            {
+                lo = i;
+            }
+            else
+            {
+                break;
+            }
+        }
+
+        return xs[k];
+    }
 }

@@ -60,11 +60,19 @@ public class ClassTwoSweepTests(ITestOutputHelper output)
         Assert.Contains("not-turning", runs[0].GetProperty("flags").EnumerateArray().Select(f => f.GetString()));
 
         // The verdict is not a saddle-node on the circle. Measured (2026-12-03): "undetermined", period-law weights
-        // saddle-node 0.50, homoclinic 0.48, finite period 0.03, β = 0.31 [0.29, 0.33]. Open gap: the summary says
-        // "no period law stands out", not in so many words that this is not a saddle-node; the decision lives in
+        // saddle-node 0.50, homoclinic 0.48, finite period 0.03, β = 0.31 [0.29, 0.33]; the decision lives in
         // Scaling/OnsetKindDecision (not changed here).
         var verdict = root.GetProperty("scaling").GetProperty("verdict").GetString();
         Assert.NotEqual("saddle-node-on-circle", verdict);
         Assert.DoesNotContain("kind of onset:             saddle-node", stdout, StringComparison.Ordinal);
+
+        // And the summary says so in words (FiniteRateAtOnset): the lowest steadily firing run already fires at a rate
+        // that no square-root onset above the silent run allows. Measured (2026-12-03): the run at 7 μA/cm² (period
+        // 16.9 ms, 32 intervals) fires at 0.60 ± 0.01 of the rate at 30 μA/cm², against at most 0.38 for a rate growing like
+        // √(μ − μc) above 3 μA/cm².
+        var evidence = root.GetProperty("scaling").GetProperty("evidence").GetString();
+        Assert.Contains("not a saddle-node on the circle", evidence, StringComparison.Ordinal);
+        Assert.Contains("the rate jumps from zero to a finite value at onset (class II", evidence, StringComparison.Ordinal);
+        Assert.Contains("not a saddle-node on the circle", stdout, StringComparison.Ordinal);
     }
 }

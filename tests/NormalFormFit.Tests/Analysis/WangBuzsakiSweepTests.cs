@@ -98,5 +98,73 @@ public class WangBuzsakiSweepTests(ITestOutputHelper output)
         var scaling = root.GetProperty("scaling");
         Assert.DoesNotContain(scaling.GetProperty("verdict").GetString(), new[] { "homoclinic", "finite-period" });
         Assert.Contains("period-law weights: saddle-node 1.00", scaling.GetProperty("evidence").GetString(), StringComparison.Ordinal);
+
+        // A class-I cell: the periods show no finite rate at onset (FiniteRateAtOnset; measured rate ratio 0.16 against
+        // the bound 0.30 of a square-root onset), so the evidence does not say "not a saddle-node".
+        Assert.DoesNotContain("not a saddle-node", scaling.GetProperty("evidence").GetString(), StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void SpikeTimeFiles_WithHeaderOnlyFilesForSilentSweeps_GiveTheOnsetByThePeriodRoute()
+    {
+        // The same sweeps as spike times: one file per sweep, a header and one time per line; silent sweeps are files
+        // with the header only. Sources: the model of Wang & Buzsáki 1996 (J. Neurosci. 16:6402; WangBuzsaki.Standard),
+        // its onset the knee of I∞(V) that SciPy finds (Reference/wang_buzsaki_knee.json, SciPy 1.10.1,
+        // make_wang_buzsaki_knee_reference.py), spike times by a rule written here, independently of nffit's detector:
+        // upward crossings of −20 mV after the voltage fell below −50 mV, linearly interpolated (common practice, no
+        // source).
+        var onset = WangBuzsaki.Standard.RestSaddleNode().Current;
+        using var folder = CliTestHost.NewFolder();
+        var manifest = new StringBuilder("file,I_app [uA/cm2]\n");
+        var voltages = new double[Offsets.Length][];
+        Parallel.For(0, Offsets.Length, i => voltages[i] = WangBuzsaki.Standard.Sweep(onset + Offsets[i], 4000, Step, 0.02, 700 + i));
+        for (var i = 0; i < Offsets.Length; i++)
+        {
+            var measurement = GaussianSource.Create(700 + i, stream: 2);
+            var name = $"wb_spikes_{i:00}.csv";
+            var text = new StringBuilder("spike_time_ms\n");
+            var armed = false;
+            var previous = double.NaN;
+            for (var k = 0; k < voltages[i].Length; k++)
+            {
+                var v = voltages[i][k] + (0.3 * measurement.Next());
+                armed |= v < -50;
+                if (armed && k > 0 && previous < -20 && v >= -20)
+                {
+                    text.Append(CultureInfo.InvariantCulture, $"{(k - 1 + ((-20 - previous) / (v - previous))) * Step:F4}\n");
+                    armed = false;
+                }
+
+                previous = v;
+            }
+
+            File.WriteAllText(folder.File(name), text.ToString());
+            manifest.Append(CultureInfo.InvariantCulture, $"{name},{onset + Offsets[i]:R}\n");
+        }
+
+        File.WriteAllText(folder.File("manifest.csv"), manifest.ToString());
+        var (code, stdout, stderr) = CliTestHost.Run("analyze", folder.File("manifest.csv"), "--json", folder.File("report.json"));
+        output.WriteLine(stdout);
+        output.WriteLine(stderr);
+        Assert.Equal(0, code);
+        var root = JsonDocument.Parse(File.ReadAllText(folder.File("report.json"))).RootElement;
+
+        // Silent sweeps are header-only files: runs that do not turn, kept in the table.
+        var runs = root.GetProperty("runs").EnumerateArray().ToList();
+        Assert.Equal(Offsets.Length, runs.Count);
+        for (var i = 0; i < runs.Count; i++)
+        {
+            if (Offsets[i] < 0)
+            {
+                Assert.Contains("not-turning", runs[i].GetProperty("flags").EnumerateArray().Select(f => f.GetString()));
+            }
+        }
+
+        // The period route within the tolerance of the voltage files (a fifth of the distance to the nearest firing
+        // sweep), covering the knee.
+        var period = root.GetProperty("onset").GetProperty("from_period");
+        output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"onset {onset:R}; from_period {period.GetProperty("value")} ± {period.GetProperty("se")} [{period.GetProperty("ci95_low")}, {period.GetProperty("ci95_high")}]"));
+        Assert.InRange(onset, period.GetProperty("ci95_low").GetDouble(), period.GetProperty("ci95_high").GetDouble());
+        Assert.InRange(Math.Abs(period.GetProperty("value").GetDouble() - onset), 0, 0.2 * Nearest);
     }
 }
