@@ -25,7 +25,7 @@ namespace NormalFormFit.Tests.Compare;
 /// <para>Repeats: 10 in CI (seeds 81000 + 10r + i; 2–4 minutes on two busy cores); the full set, 100 repeats, with
 /// <c>NFFIT_CALIBRATION_MATRIX=full dotnet test NormalFormFit.sln --filter "FullyQualifiedName~PositionCalibrationTests"
 /// --logger "console;verbosity=detailed"</c> (or NFFIT_COMPARE_REPEATS=n, and NFFIT_COMPARE_FIRST_SEED for other seeds;
-/// docs/compare-notes.md has the counts). The
+/// docs/model-expressions.md, "Status", has the counts). The
 /// one-harmonic form is compared on the first 10 repeats only.</para>
 /// </remarks>
 public sealed class PositionCalibrationRepeats
