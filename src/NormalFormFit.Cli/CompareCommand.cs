@@ -58,6 +58,20 @@ internal static class CompareCommand
                     stderr.WriteLine("nffit: usage: --out: the report folder is not written for a planar system yet; use --json FILE for the full result");
                     return ExitCodes.BadInput;
                 }
+
+                // A system is compared on the runs' periods alone and its replicates have no pilot stage: both options
+                // would be silently without effect, so they are refused.
+                if (pr.GetValue(noPeriods))
+                {
+                    stderr.WriteLine("nffit: usage: --no-periods: a planar system is compared on the runs' periods and on where they are silent; without the periods nothing is left to compare: leave --no-periods out");
+                    return ExitCodes.BadInput;
+                }
+
+                if (pr.GetResult(pilot) is { Implicit: false })
+                {
+                    stderr.WriteLine("nffit: usage: --pilot: a planar system's replicates are drawn at the fit itself, with no pilot stage (docs/compare-notes.md, \"Planar systems\"): leave --pilot out");
+                    return ExitCodes.BadInput;
+                }
             }
             else
             {

@@ -33,7 +33,8 @@ internal sealed record ModelDto
 
     public bool Consistent { get; init; }
 
-    public required string TurningSense { get; init; }
+    /// <summary>Null for a planar system, which has no phase to turn.</summary>
+    public required string? TurningSense { get; init; }
 
     public required string Caution { get; init; }
 
@@ -51,11 +52,13 @@ internal sealed record ModelDto
 
     public required IReadOnlyList<RunMisfitDto> WorstRuns { get; init; }
 
-    public required IReadOnlyList<RegionMisfitDto> WorstRegions { get; init; }
+    /// <summary>Null for a planar system, which is compared on periods, not over phase regions.</summary>
+    public required IReadOnlyList<RegionMisfitDto>? WorstRegions { get; init; }
 
     public required IReadOnlyList<RunMisfitDto> Runs { get; init; }
 
-    public required IReadOnlyList<RegionMisfitDto> Regions { get; init; }
+    /// <summary>Null for a planar system (as <see cref="WorstRegions"/>).</summary>
+    public required IReadOnlyList<RegionMisfitDto>? Regions { get; init; }
 
     public required IReadOnlyList<DiagnosticDto> Diagnostics { get; init; }
 
@@ -68,16 +71,16 @@ internal sealed record ModelDto
         Consistent = c.Consistent,
         Statistic = c.Statistic,
         PValue = c.PValue,
-        TurningSense = WireNames.Of(c.Sense),
+        TurningSense = c.IsSystem ? null : WireNames.Of(c.Sense),
         Caution = TextReport.Caution,
         ExpectedStatistic = c.Expected,
         Replicates = c.ReplicateStatistics.Count + c.FailedReplicates,
         FailedReplicates = c.FailedReplicates,
         Points = c.Points,
         WorstRuns = [.. c.WorstRuns.Select(RunMisfitDto.From)],
-        WorstRegions = [.. c.WorstRegions.Select(RegionMisfitDto.Of)],
+        WorstRegions = c.IsSystem ? null : [.. c.WorstRegions.Select(RegionMisfitDto.Of)],
         Runs = [.. c.Runs.Select(RunMisfitDto.From)],
-        Regions = [.. c.Regions.Select(RegionMisfitDto.Of)],
+        Regions = c.IsSystem ? null : [.. c.Regions.Select(RegionMisfitDto.Of)],
         Diagnostics = [.. c.Diagnostics.Select(DiagnosticDto.From)],
     };
 }

@@ -58,6 +58,7 @@ public static class RunAnalyzer
                 InputKind = source.Kind,
                 Orbit = source.Orbit,
                 Dropped = source.Dropped,
+                SampleTimes = t,
                 Relaxation = relaxation,
                 Noise = noise,
             };

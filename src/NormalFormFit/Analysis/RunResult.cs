@@ -131,4 +131,10 @@ public sealed record RunResult(
 
     /// <summary>Rows of the run file not used as samples, by reason (none when not known, e.g. run lines of an earlier version).</summary>
     public DroppedRows Dropped { get; init; } = DroppedRows.None;
+
+    /// <summary>
+    /// Times of the samples the phase was analysed at (after dropped frames and rows), so that a simulation of the run can be
+    /// sampled as the run was (compare's replicates); null when not known (run lines, which do not carry them).
+    /// </summary>
+    public double[]? SampleTimes { get; init; }
 }

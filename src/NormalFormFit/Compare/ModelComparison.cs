@@ -91,8 +91,14 @@ public sealed record ModelComparison(
     /// <summary>Levenberg–Marquardt iterations taken.</summary>
     public int Iterations { get; init; }
 
-    /// <summary>How the runs' phase advanced as read; the model is fitted in that convention.</summary>
+    /// <summary>How the runs' phase advanced as read; the model is fitted in that convention (not used for a system).</summary>
     public TurningSense Sense { get; init; }
+
+    /// <summary>
+    /// True for a planar system (<see cref="PlanarComparer"/>): it is compared on periods, so it has no phase regions and
+    /// no turning sense, and the reports leave those out.
+    /// </summary>
+    public bool IsSystem { get; init; }
 }
 
 /// <summary>How the runs' phase advanced as read, in the file's own convention.</summary>

@@ -11,7 +11,8 @@ internal sealed record Replicate(double Statistic, double[] Free, double Onset, 
 /// <summary>
 /// Parametric bootstrap of a model comparison (Efron &amp; Tibshirani 1993, ch. 6; Davison &amp; Hinkley 1997, §2.2
 /// and §4.2): the whole pipeline repeated on runs simulated from a fitted model. Each run is re-simulated at its μ with
-/// its own sampling interval and duration, a random initial phase and the noise its analysis found
+/// its own sampling interval and duration (at the run's own sample times when frames are missing or the clock is
+/// irregular: <see cref="SamplingPattern"/>), a random initial phase and the noise its analysis found
 /// (<see cref="ReplicateNoise"/>), then analysed with the very options the data were analysed with, and fitted as the
 /// data were. Cost per replicate: one simulation and analysis of every run and one fit. See docs/compare-notes.md.
 /// </summary>
@@ -42,6 +43,8 @@ internal sealed class ParametricBootstrap(ComparisonProblem problem, OnsetSearch
             var source = problem.Source(i);
             var dt = source.Duration / Math.Max(source.Samples - 1, 1);
             var (sigma, diffusion) = ReplicateNoise(source);
+            var sampling = SamplingPattern.Of(source.SampleTimes);
+            var runSeed = GaussianSource.DeriveSeed(GaussianSource.DeriveSeed(seed, b), i);
             SimulatedRun sim;
             try
             {
@@ -49,16 +52,22 @@ internal sealed class ParametricBootstrap(ComparisonProblem problem, OnsetSearch
                 {
                     Mu = full[pCount] + (full[pCount + 1] * source.Param),
                     Revolutions = (int)Math.Min(Math.Ceiling(source.Turns) + 2, int.MaxValue),
-                    SamplingInterval = dt,
+                    SamplingInterval = sampling?.SimulationStep ?? dt,
                     MaxDuration = source.Duration,
-                    MeasurementNoise = double.IsFinite(sigma) ? sigma : 0.0,
+                    MeasurementNoise = sampling is null && double.IsFinite(sigma) ? sigma : 0.0,
                     DynamicNoise = diffusion,
-                    Seed = GaussianSource.DeriveSeed(GaussianSource.DeriveSeed(seed, b), i),
+                    Seed = runSeed,
                 });
             }
             catch (ArgumentException)
             {
                 return null; // the fitted model cannot be simulated here (e.g. too stiff)
+            }
+
+            if (sampling is not null)
+            {
+                var (time, phase) = sampling.Sample(sim.Time, sim.TruePhase, double.IsFinite(sigma) ? sigma : 0.0, runSeed);
+                sim = sim with { Time = time, Phase = phase };
             }
 
             var recording = new PhaseRecording(source.File, sim.Time, sim.Phase, [0]);

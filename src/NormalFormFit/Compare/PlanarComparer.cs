@@ -280,6 +280,7 @@ public static class PlanarComparer
             model.Text, parameters, Parameter("c0", pCount), Parameter("c1", pCount + 1), onset, onsetCi, q,
             ok.Count > 0 ? ok.Average(x => x.Statistic) : double.NaN, p, consistent, problem.Points, runMisfits, [], worst, [], notes)
         {
+            IsSystem = true,
             ReplicateStatistics = [.. ok.Select(x => x.Statistic)],
             FailedReplicates = failed,
             Iterations = fit.Iterations,

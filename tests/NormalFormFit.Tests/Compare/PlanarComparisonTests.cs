@@ -16,7 +16,7 @@ namespace NormalFormFit.Tests.Compare;
 /// invented). The onset is checked against the knee of the steady-state current SciPy finds
 /// (Reference/morris_lecar_knee.json).
 /// </summary>
-public class PlanarComparisonTests(ITestOutputHelper output)
+public class PlanarComparisonTests(PlanarSweepFolder sweeps, ITestOutputHelper output) : IClassFixture<PlanarSweepFolder>
 {
     // Distances of the sweeps from the onset (μA/cm²): two silent, six firing. Invented demo levels: a noise current of
     // 1 μA/cm²·√ms and 0.3 mV of measurement noise; 2 s sweeps at 20 kHz.
@@ -27,12 +27,10 @@ public class PlanarComparisonTests(ITestOutputHelper output)
     private const double Duration = 2000;
     private const double Step = 0.05;
 
-    private static readonly Lazy<string> Sweeps = new(WriteSweeps);
-
     internal static string ClassTwo => FormattableString.Invariant(
         $"v' = (mu - 2*(v + 60) - 4.4*0.5*(1 + tanh((v + 1.2)/18))*(v - 120) - 8*w*(v + 84))/20\nw' = 0.04*(0.5*(1 + tanh((v - 2)/30)) - w)*cosh((v - 2)/60)");
 
-    private static string WriteSweeps()
+    internal static string WriteSweeps()
     {
         var model = MorrisLecar.ClassOne;
         var onset = model.RestSaddleNode().Current;
@@ -61,8 +59,8 @@ public class PlanarComparisonTests(ITestOutputHelper output)
 
     private JsonElement Compare(string system, params string[] extra)
     {
-        var json = Path.Combine(Path.GetDirectoryName(Sweeps.Value)!, $"model-{Guid.NewGuid():N}.json");
-        var (code, stdout, stderr) = CliTestHost.Run(["compare", Sweeps.Value, "--model", system, "--observe", "v", "--initial", "v=-40", "--json", json, .. extra]);
+        var json = Path.Combine(Path.GetDirectoryName(sweeps.Manifest)!, $"model-{Guid.NewGuid():N}.json");
+        var (code, stdout, stderr) = CliTestHost.Run(["compare", sweeps.Manifest, "--model", system, "--observe", "v", "--initial", "v=-40", "--json", json, .. extra]);
         output.WriteLine(stdout);
         output.WriteLine(stderr);
         Assert.Equal(0, code);
@@ -77,6 +75,12 @@ public class PlanarComparisonTests(ITestOutputHelper output)
     {
         var model = Compare(PlanarSystemPiecesTests.MorrisLecarSystem(), "--start", "c0=1,c1=0.98");
         Assert.True(model.GetProperty("consistent").GetBoolean());
+
+        // A system is compared on periods: no turning sense, no phase regions (null, not a meaningless value).
+        foreach (var key in new[] { "turning_sense", "regions", "worst_regions" })
+        {
+            Assert.Equal(JsonValueKind.Null, model.GetProperty(key).ValueKind);
+        }
 
         // The map's truth is c0 = 0, c1 = 1 (the sweeps' current is the model's); the onset interval holds the knee of
         // I∞(V) that SciPy finds (Reference/morris_lecar_knee.json, 39.96315309), and the fold agrees with the
@@ -108,5 +112,24 @@ public class PlanarComparisonTests(ITestOutputHelper output)
     {
         var model = Compare(PlanarSystemPiecesTests.MorrisLecarSystem(gCa: 4.4, phi: 0.1));
         Assert.False(model.GetProperty("consistent").GetBoolean());
+    }
+}
+
+/// <summary>The sweeps of <see cref="PlanarComparisonTests"/>, written once to a temporary folder and removed afterwards.</summary>
+public sealed class PlanarSweepFolder : IDisposable
+{
+    /// <summary>The manifest of the sweeps.</summary>
+    public string Manifest { get; } = PlanarComparisonTests.WriteSweeps();
+
+    public void Dispose()
+    {
+        try
+        {
+            Directory.Delete(Path.GetDirectoryName(Manifest)!, recursive: true);
+        }
+        catch (IOException)
+        {
+            // A file still open elsewhere: the temporary folder is left to the system.
+        }
     }
 }

@@ -97,4 +97,17 @@ public class PlanarRefusalTests
         Assert.Equal(2, code);
         Assert.Contains("not written for a planar system yet", err, StringComparison.Ordinal);
     }
+
+    [Theory]
+    [InlineData("--no-periods", null, "without the periods nothing is left to compare")]
+    [InlineData("--pilot", "9", "no pilot stage")]
+    [InlineData("--pilot", "0", "no pilot stage")]
+    public void AnOptionWithoutEffectOnASystem_IsRefusedRatherThanIgnored(string option, string? value, string message)
+    {
+        string[] extra = value is null ? [option] : [option, value];
+        var (code, err) = Run(["--model", "v' = mu - v - w; w' = v - w", "--observe", "v", .. extra]);
+        Assert.Equal(2, code);
+        Assert.Contains($"{option}: ", err, StringComparison.Ordinal);
+        Assert.Contains(message, err, StringComparison.Ordinal);
+    }
 }
