@@ -152,6 +152,7 @@ internal static class CompareCommand
 
         // One set of reading and analysis options for the runs and, through AnalysedRunSet, for the replicates.
         analyzeOptions ??= AnalyzeOptions.Default;
+        analyzeOptions = analyzeOptions with { Run = analyzeOptions.Run with { KeepSampleTimes = true } };
         var analysis = ManifestAnalyzer.Analyze(manifestPath, analyzeOptions);
         if (analysis.Value is null)
         {
@@ -196,6 +197,7 @@ internal static class CompareCommand
         }
 
         analyzeOptions ??= AnalyzeOptions.Default;
+        analyzeOptions = analyzeOptions with { Run = analyzeOptions.Run with { KeepSampleTimes = true } };
         var analysis = ManifestAnalyzer.Analyze(manifestPath, analyzeOptions);
         if (analysis.Value is null)
         {

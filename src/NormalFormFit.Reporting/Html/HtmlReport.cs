@@ -221,7 +221,9 @@ public static partial class HtmlReport
         }
 
         sb.Append("<p class=\"note\">Errors, intervals and the verdict come from a parametric bootstrap: the whole analysis repeated on ")
-          .Append("runs simulated from the fitted model (a pilot stage first removes the reconstruction's smoothing bias). ")
+          .Append(c.BiasCorrected
+              ? "runs simulated from the fitted model less the reconstruction's smoothing bias, which a pilot stage estimated. "
+              : "runs simulated from the fitted model itself (no pilot stage removed the reconstruction's smoothing bias this time). ")
           .Append("See docs/model-expressions.md for the method and its measured calibration.</p>\n</section>\n");
     }
 

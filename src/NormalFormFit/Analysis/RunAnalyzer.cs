@@ -21,6 +21,12 @@ public sealed record RunOptions
     /// <summary>How events are detected in a single-signal recording.</summary>
     public SignalEventOptions SignalEvents { get; init; } = SignalEventOptions.Default;
 
+    /// <summary>
+    /// Keep each run's sample times in <see cref="RunResult.SampleTimes"/> (for compare, whose replicates are sampled as
+    /// the run was). Off by default: a manifest of long records would otherwise hold every run's time array until the end.
+    /// </summary>
+    public bool KeepSampleTimes { get; init; }
+
     /// <summary>Defaults.</summary>
     public static RunOptions Default { get; } = new();
 }
@@ -58,7 +64,7 @@ public static class RunAnalyzer
                 InputKind = source.Kind,
                 Orbit = source.Orbit,
                 Dropped = source.Dropped,
-                SampleTimes = t,
+                SampleTimes = options.KeepSampleTimes ? t : null,
                 Relaxation = relaxation,
                 Noise = noise,
             };

@@ -317,6 +317,7 @@ public static class ModelComparer
             ReplicateStatistics = [.. ok.Select(x => x.Misfit.Total)],
             FailedReplicates = failed,
             Iterations = fit.Iterations,
+            BiasCorrected = !ReferenceEquals(centreFree, fit.Parameters),
         };
     }
 

@@ -88,6 +88,13 @@ public sealed record ModelComparison(
     /// <summary>Replicates that could not be analysed or fitted (counted against the model in the test).</summary>
     public int FailedReplicates { get; init; }
 
+    /// <summary>
+    /// True when the main stage's replicates were drawn at the fit less the bias a pilot stage estimated; false when they
+    /// were drawn at the fit itself (pilot or bias correction off, too few pilot replicates, a shifted model that stops,
+    /// a model that stops, or a planar system).
+    /// </summary>
+    public bool BiasCorrected { get; init; }
+
     /// <summary>Levenberg–Marquardt iterations taken.</summary>
     public int Iterations { get; init; }
 

@@ -46,7 +46,7 @@ public sealed class PositionCalibrationRepeats
         var model = ExpressionPhaseModel.Bind(ModelExpression.Parse("0.05 + 0.9*mu - a*sin(theta) + b*sin(2*theta)").Value!, new Dictionary<string, double> { ["a"] = 1.0, ["b"] = 0.12 }).Value!;
         var trueForm = ModelExpression.Parse("mu - a*sin(theta - d) + b*sin(2*(theta - d))").Value!;
         var oneHarmonic = ModelExpression.Parse("mu - a*sin(theta - d)").Value!;
-        var read = new AnalyzeOptions { Read = new NormalFormFit.Ingest.RunReadOptions { YDown = true } };
+        var read = new AnalyzeOptions { Read = new NormalFormFit.Ingest.RunReadOptions { YDown = true }, Run = new RunOptions { KeepSampleTimes = true } };
         var trueResults = new List<ModelComparison?>();
         var wrongResults = new List<ModelComparison?>();
         for (var r = 0; r < Count; r++)
