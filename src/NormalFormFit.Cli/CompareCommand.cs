@@ -243,7 +243,9 @@ internal static class CompareCommand
 
         w.WriteLine(string.Create(ic, $"onset  μ_lab = {Numerics.ErrorDigits.Plain(c.Onset.Value, 6)} ± {Numerics.ErrorDigits.Plain(c.Onset.StandardError, 2)}   95% [{Numerics.ErrorDigits.Plain(c.OnsetCi95.Low, 6)}, {Numerics.ErrorDigits.Plain(c.OnsetCi95.High, 6)}]  (where the limit cycle appears)"));
         var replicates = c.ReplicateStatistics.Count + c.FailedReplicates;
-        w.WriteLine(string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {Numerics.ErrorDigits.Plain(c.Statistic, 4)}; {replicates} simulated from the fit: mean {Numerics.ErrorDigits.Plain(c.Expected, 4)}, largest {Numerics.ErrorDigits.Plain(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN, 4)}; p = {Numerics.ErrorDigits.Plain(c.PValue, 2)})"));
+        w.WriteLine(replicates == 0
+            ? string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {Numerics.ErrorDigits.Plain(c.Statistic, 4)}; no run sets simulated: the fitted system contradicts a run outright, see the notes)")
+            : string.Create(ic, $"verdict  {(c.Consistent ? "consistent with the data" : "REJECTED by the data")}  (Q = {Numerics.ErrorDigits.Plain(c.Statistic, 4)}; {replicates} simulated from the fit: mean {Numerics.ErrorDigits.Plain(c.Expected, 4)}, largest {Numerics.ErrorDigits.Plain(c.ReplicateStatistics.Count > 0 ? c.ReplicateStatistics.Max() : double.NaN, 4)}; p = {Numerics.ErrorDigits.Plain(c.PValue, 2)})"));
         w.WriteLine("worst runs (squared period residual over its mean in the simulated replicates; about 1 is a good fit):");
         foreach (var r in c.WorstRuns)
         {

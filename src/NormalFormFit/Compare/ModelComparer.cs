@@ -184,7 +184,7 @@ public static class ModelComparer
         if (bad is not null)
         {
             return string.Create(CultureInfo.InvariantCulture,
-                $"the fit ended with {bad.Name} = {bad.Value:G6} ± {bad.StandardError:G3}, not a finite estimate: the model cannot be checked against these runs; give starting values with --start, hold parameters with --fix, or simplify the model");
+                $"the fit ended with {bad.Name} = {Numerics.ErrorDigits.Plain(bad.Value, 6)} ± {Numerics.ErrorDigits.Plain(bad.StandardError, 3)}, not a finite estimate: the model cannot be checked against these runs; give starting values with --start, hold parameters with --fix, or simplify the model");
         }
 
         if (!double.IsFinite(c.Onset.Value))
@@ -307,7 +307,7 @@ public static class ModelComparer
         else if (!consistent)
         {
             notes.Add(new Diagnostic(Severity.Warning, "model-rejected", string.Create(ic,
-                $"the model does not fit within the data's own scatter: Q = {observed.Total:G4} is exceeded by {exceed} of {replicates.Length} run sets simulated from the fitted model (p = {p:G2}); worst run {worstRuns[0].File} (μ = {worstRuns[0].Param:G6}), worst phase region [{worstRegions[0].From:F2}, {worstRegions[0].To:F2})")));
+                $"the model does not fit within the data's own scatter: Q = {Numerics.ErrorDigits.Plain(observed.Total, 4)} is exceeded by {exceed} of {replicates.Length} run sets simulated from the fitted model (p = {Numerics.ErrorDigits.Plain(p, 2)}); worst run {worstRuns[0].File} (μ = {Numerics.ErrorDigits.Plain(worstRuns[0].Param, 6)}), worst phase region [{worstRegions[0].From:F2}, {worstRegions[0].To:F2})")));
         }
 
         return new ModelComparison(

@@ -149,11 +149,11 @@ public static class PlanarComparer
         {
             if (runs[i].Fires && !outcomes[i].Fires)
             {
-                contradictions.Add(string.Create(ic, $"silent at μ = {runs[i].MuLab:G6}, where {runs[i].Source.File} fires"));
+                contradictions.Add(string.Create(ic, $"silent at μ = {Numerics.ErrorDigits.Plain(runs[i].MuLab, 6)}, where {runs[i].Source.File} fires"));
             }
             else if (!runs[i].Fires && outcomes[i].Fires && outcomes[i].Period < runs[i].Duration / 2)
             {
-                contradictions.Add(string.Create(ic, $"fires with period {outcomes[i].Period:G4} at μ = {runs[i].MuLab:G6}, where {runs[i].Source.File} stays silent for {runs[i].Duration:G4}"));
+                contradictions.Add(string.Create(ic, $"fires with period {Numerics.ErrorDigits.Plain(outcomes[i].Period, 4)} at μ = {Numerics.ErrorDigits.Plain(runs[i].MuLab, 6)}, where {runs[i].Source.File} stays silent for {Numerics.ErrorDigits.Plain(runs[i].Duration, 4)}"));
             }
         }
 
@@ -175,15 +175,15 @@ public static class PlanarComparer
         else
         {
             notes.Add(new Diagnostic(Severity.Info, "onset-by-simulation", string.Create(ic,
-                $"the fitted system's limit cycle appears at μ_lab = {simulated.Value:G8} (bisection between silent and firing, resolution ±{simulated.HalfWidth:G2}; a cycle slower than {problem.TimeCap / 4:G3} counts as silent)")));
+                $"the fitted system's limit cycle appears at μ_lab = {Numerics.ErrorDigits.Plain(simulated.Value, 8)} (bisection between silent and firing, resolution ±{Numerics.ErrorDigits.Plain(simulated.HalfWidth, 2)}; a cycle slower than {Numerics.ErrorDigits.Plain(problem.TimeCap / 4, 3)} counts as silent)")));
             notes.Add(fold is null
                 ? new Diagnostic(Severity.Warning, "onset-not-fold",
                     "no fold of the equilibria (f = g = 0, det J = 0) was found near the onset: the cycle does not begin at a saddle-node of equilibria (e.g. a Hopf bifurcation, class II); the onset is the simulation's")
                 : foldAgrees
                     ? new Diagnostic(Severity.Info, "onset-fold", string.Create(ic,
-                        $"the fold of the equilibria is at μ_lab = {fold.MuLab:G8} (μ_model = {fold.MuModel:G8}, state {model.Variables[0]} = {fold.X0:G6}, {model.Variables[1]} = {fold.X1:G6}): it agrees with the simulation, a saddle-node on the invariant circle"))
+                        $"the fold of the equilibria is at μ_lab = {Numerics.ErrorDigits.Plain(fold.MuLab, 8)} (μ_model = {Numerics.ErrorDigits.Plain(fold.MuModel, 8)}, state {model.Variables[0]} = {Numerics.ErrorDigits.Plain(fold.X0, 6)}, {model.Variables[1]} = {Numerics.ErrorDigits.Plain(fold.X1, 6)}): it agrees with the simulation, a saddle-node on the invariant circle"))
                     : new Diagnostic(Severity.Warning, "onset-not-fold", string.Create(ic,
-                        $"the fold of the equilibria nearest the onset is at μ_lab = {fold.MuLab:G8}, away from the simulation's {simulated.Value:G8}: the cycle does not begin at that saddle-node (e.g. a Hopf bifurcation or bistability); the onset is the simulation's")));
+                        $"the fold of the equilibria nearest the onset is at μ_lab = {Numerics.ErrorDigits.Plain(fold.MuLab, 8)}, away from the simulation's {Numerics.ErrorDigits.Plain(simulated.Value, 8)}: the cycle does not begin at that saddle-node (e.g. a Hopf bifurcation or bistability); the onset is the simulation's")));
         }
 
         var seed = Fingerprint(options.Seed, runs);
@@ -194,7 +194,7 @@ public static class PlanarComparer
             var sampler = new PlanarSampler(problem, data.Options.Run, options, full, outcomes);
             noise = (sampler.CalibrateIntrinsicNoise(GaussianSource.DeriveSeed(seed, 7)), noise.Measurement);
             notes.Add(new Diagnostic(Severity.Info, "system-noise", string.Create(ic,
-                $"replicates carry intrinsic noise of intensity {noise.Dynamic:G3} on {model.Variables[model.Observed]}' (matched to the scatter of the inter-event intervals) and each run's measurement noise ({string.Join(", ", noise.Measurement.Select(s => s.ToString("G3", ic)))})")));
+                $"replicates carry intrinsic noise of intensity {Numerics.ErrorDigits.Plain(noise.Dynamic, 3)} on {model.Variables[model.Observed]}' (matched to the scatter of the inter-event intervals) and each run's measurement noise ({string.Join(", ", noise.Measurement.Select(s => Numerics.ErrorDigits.Plain(s, 3)))})")));
             replicates = sampler.Draw(noise.Dynamic, options.Replicates, seed, foldAgrees ? fold : null);
         }
 
@@ -273,7 +273,7 @@ public static class PlanarComparer
         else if (!consistent)
         {
             notes.Add(new Diagnostic(Severity.Warning, "model-rejected", string.Create(ic,
-                $"the system does not fit within the data's own scatter: Q = {q:G4} is exceeded by {exceed} of {replicates.Length} run sets simulated from the fitted system (p = {p:G2}); worst run {worst[0].File} (μ = {worst[0].Param:G6})")));
+                $"the system does not fit within the data's own scatter: Q = {Numerics.ErrorDigits.Plain(q, 4)} is exceeded by {exceed} of {replicates.Length} run sets simulated from the fitted system (p = {Numerics.ErrorDigits.Plain(p, 2)}); worst run {worst[0].File} (μ = {Numerics.ErrorDigits.Plain(worst[0].Param, 6)})")));
         }
 
         var comparison = new ModelComparison(
