@@ -86,5 +86,12 @@ public class SignalOrbitViewTests
         var figure = Assert.Single(ReportFigures.Build(with), f => f.Name == "signal-orbits");
         Assert.Contains("'signal'", figure.Caption, StringComparison.Ordinal);
         Assert.StartsWith("\u0089PNG", System.Text.Encoding.Latin1.GetString(figure.Png(), 0, 4), StringComparison.Ordinal);
+
+        // The figure draws the orbits: ink and colours (the blue mean orbit, the amber bottleneck), not an empty frame.
+        using var bitmap = SkiaSharp.SKBitmap.Decode(figure.Png());
+        var (dark, colours, blue) = NormalFormFit.Tests.Reporting.Chromium.Ink(bitmap);
+        Assert.True(dark > 0.005, $"only {dark:P2} of the figure is ink");
+        Assert.True(colours > 20, $"only {colours} distinct colours");
+        Assert.True(blue, "no blue (the mean orbit) in the figure");
     }
 }
